@@ -1,0 +1,3 @@
+//! Renderers: they only present results computed upstream.
+
+pub mod pdf;

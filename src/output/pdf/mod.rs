@@ -1,0 +1,1 @@
+//! PDF output: content -> layout -> bytes.

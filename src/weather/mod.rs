@@ -1,0 +1,1 @@
+//! Weather for the solar drive: synthetic daily clearness sequences and weather-file readers.
