@@ -15,4 +15,5 @@ pub mod rules;
 pub mod scheme;
 pub mod simulate;
 pub mod sizing;
+pub mod templates;
 pub mod weather;

@@ -1,3 +1,6 @@
-//! Renderers: they only present results computed upstream.
+//! Renderers: they only present results computed upstream. Terminal tables, CSV, JSON and PDF
+//! are sibling printers over the same results; `files` writes any of them safely.
 
+pub mod files;
 pub mod pdf;
+pub mod table;

@@ -1,1 +1,49 @@
-//! (to be written)
+//! The scheme file: its serde model (`raw`), loading with limits and line numbers (`load`),
+//! meaning checks (`validate`) and the checked SI model the engine uses (`model`).
+
+pub mod load;
+pub mod model;
+pub mod raw;
+pub mod validate;
+
+use std::path::Path;
+
+pub use model::*;
+
+use crate::error::SchemeError;
+
+/// A scheme with the text it was read from (for the SHA-256 and the PDF appendix).
+#[derive(Debug, Clone)]
+pub struct Loaded {
+    pub scheme: Scheme,
+    pub source: load::Source,
+}
+
+/// Reads, parses and validates a scheme file.
+pub fn load_file(path: &Path) -> Result<Loaded, SchemeError> {
+    let source = load::read_source(path)?;
+    load_source(source)
+}
+
+/// Parses and validates scheme text already in memory (`label` names it in messages).
+pub fn load_str(text: &str, label: &str, base_dir: &Path) -> Result<Loaded, SchemeError> {
+    let source = load::source_from_bytes(text.as_bytes(), label, base_dir)?;
+    load_source(source)
+}
+
+/// Parses and validates bytes (any bytes: refused cleanly when not a scheme).
+pub fn load_bytes(bytes: &[u8], label: &str, base_dir: &Path) -> Result<Loaded, SchemeError> {
+    let source = load::source_from_bytes(bytes, label, base_dir)?;
+    load_source(source)
+}
+
+fn load_source(source: load::Source) -> Result<Loaded, SchemeError> {
+    let (raw, lines) = load::parse_raw(&source)?;
+    match validate::validate(&raw, &lines, &source.base_dir) {
+        Ok(scheme) => Ok(Loaded { scheme, source }),
+        Err(problems) => Err(SchemeError {
+            file: source.label.clone(),
+            problems,
+        }),
+    }
+}

@@ -1,0 +1,508 @@
+//! Reading a scheme file: size and encoding limits, YAML syntax, unknown keys and wrong types.
+//!
+//! The first layer of checking. It reports every unknown key (with a "did you mean") and every
+//! wrong-typed value it can reach, each with its line, before `validate` checks meaning.
+//! Line numbers of fields come from a separate event pass over the YAML (`LineMap`), because the
+//! serde value tree does not keep positions.
+
+use std::collections::BTreeMap;
+use std::path::{Path, PathBuf};
+
+use yaml_rust2::parser::{Event, MarkedEventReceiver, Parser};
+use yaml_rust2::scanner::Marker;
+
+use super::raw::RawScheme;
+use crate::error::{Problem, SchemeError};
+
+/// Largest scheme file accepted (bytes). Hand-written schemes are a few kilobytes.
+pub const MAX_FILE_BYTES: usize = 1024 * 1024;
+
+/// Deepest nesting of YAML collections accepted. The format itself needs five.
+pub const MAX_NESTING: usize = 32;
+
+/// Where each field path starts in the file (1-based line and column).
+#[derive(Debug, Default, Clone)]
+pub struct LineMap {
+    lines: BTreeMap<String, (usize, usize)>,
+}
+
+impl LineMap {
+    /// Builds the map with one pass over the YAML events. Best effort: a file the event parser
+    /// refuses gives an empty map (the serde parse reports the syntax error itself).
+    pub fn build(text: &str) -> LineMap {
+        let mut rec = LineRecorder::default();
+        let mut parser = Parser::new_from_str(text);
+        if parser.load(&mut rec, false).is_err() {
+            return LineMap::default();
+        }
+        LineMap { lines: rec.lines }
+    }
+
+    /// Line and column of a field path, or of its nearest recorded parent.
+    pub fn locate(&self, path: &str) -> Option<(usize, usize)> {
+        let mut p = path.to_string();
+        loop {
+            if let Some(v) = self.lines.get(&p) {
+                return Some(*v);
+            }
+            let cut = p.rfind(['.', '['])?;
+            p.truncate(cut);
+            if p.is_empty() {
+                return None;
+            }
+        }
+    }
+
+    /// The most nested collection depth seen.
+    pub fn max_depth(&self) -> usize {
+        self.lines
+            .keys()
+            .map(|k| k.matches(['.', '[']).count() + 1)
+            .max()
+            .unwrap_or(0)
+    }
+}
+
+enum Frame {
+    Map {
+        path: String,
+        expect_key: bool,
+        key: String,
+    },
+    Seq {
+        path: String,
+        index: usize,
+    },
+    /// A complex key or an ignored subtree.
+    Skip,
+}
+
+#[derive(Default)]
+struct LineRecorder {
+    stack: Vec<Frame>,
+    lines: BTreeMap<String, (usize, usize)>,
+    depth_exceeded: bool,
+}
+
+fn join(parent: &str, key: &str) -> String {
+    if parent.is_empty() {
+        key.to_string()
+    } else {
+        format!("{parent}.{key}")
+    }
+}
+
+impl MarkedEventReceiver for LineRecorder {
+    fn on_event(&mut self, ev: Event, mark: Marker) {
+        let pos = (mark.line(), mark.col() + 1);
+        let starts_node = matches!(
+            ev,
+            Event::Scalar(..)
+                | Event::MappingStart(..)
+                | Event::SequenceStart(..)
+                | Event::Alias(..)
+        );
+        if matches!(ev, Event::MappingEnd | Event::SequenceEnd) {
+            self.stack.pop();
+            return;
+        }
+        if !starts_node {
+            return;
+        }
+        // Where does this node sit?
+        let node_path: Option<String> = match self.stack.last_mut() {
+            None => Some(String::new()),
+            Some(Frame::Skip) => None,
+            Some(Frame::Map {
+                path,
+                expect_key,
+                key,
+            }) => {
+                if *expect_key {
+                    if let Event::Scalar(ref k, ..) = ev {
+                        *key = k.clone();
+                        *expect_key = false;
+                        let p = join(path, k);
+                        self.lines.entry(p).or_insert(pos);
+                        return;
+                    }
+                    // complex key: skip its subtree, and its value
+                    *expect_key = false;
+                    *key = String::from("?");
+                    None
+                } else {
+                    *expect_key = true;
+                    Some(join(path, key))
+                }
+            }
+            Some(Frame::Seq { path, index }) => {
+                let p = format!("{path}[{index}]");
+                *index += 1;
+                Some(p)
+            }
+        };
+        if let Some(p) = node_path.as_ref().filter(|p| !p.is_empty()) {
+            self.lines.entry(p.clone()).or_insert(pos);
+        }
+        if self.stack.len() > MAX_NESTING {
+            self.depth_exceeded = true;
+        }
+        match ev {
+            Event::MappingStart(..) => self.stack.push(match node_path {
+                Some(path) if !self.depth_exceeded => Frame::Map {
+                    path,
+                    expect_key: true,
+                    key: String::new(),
+                },
+                _ => Frame::Skip,
+            }),
+            Event::SequenceStart(..) => self.stack.push(match node_path {
+                Some(path) if !self.depth_exceeded => Frame::Seq { path, index: 0 },
+                _ => Frame::Skip,
+            }),
+            _ => {}
+        }
+    }
+}
+
+/// The text of a scheme file and where it came from.
+#[derive(Debug, Clone)]
+pub struct Source {
+    /// The file as the user named it (used in messages).
+    pub label: String,
+    /// Folder that relative paths inside the scheme are resolved against.
+    pub base_dir: PathBuf,
+    pub text: String,
+}
+
+fn whole_file_problem(message: String) -> Problem {
+    Problem {
+        field: String::new(),
+        line: None,
+        column: None,
+        message,
+    }
+}
+
+/// Reads a file with the size and encoding limits applied.
+pub fn read_source(path: &Path) -> Result<Source, SchemeError> {
+    let label = path.display().to_string();
+    let fail = |m: String| SchemeError {
+        file: label.clone(),
+        problems: vec![whole_file_problem(m)],
+    };
+    let meta = std::fs::metadata(path).map_err(|e| fail(format!("cannot read the file: {e}")))?;
+    if meta.is_dir() {
+        return Err(fail(
+            "this is a folder; give the path of a scheme file (.yaml)".into(),
+        ));
+    }
+    if meta.len() > MAX_FILE_BYTES as u64 {
+        return Err(fail(format!(
+            "the file is {} bytes; a scheme file may be at most {} bytes (1 MiB) — is this the right file?",
+            meta.len(),
+            MAX_FILE_BYTES
+        )));
+    }
+    let bytes = std::fs::read(path).map_err(|e| fail(format!("cannot read the file: {e}")))?;
+    let base_dir = path
+        .parent()
+        .map(|p| p.to_path_buf())
+        .unwrap_or_else(|| PathBuf::from("."));
+    source_from_bytes(&bytes, &label, &base_dir)
+}
+
+/// Checks size and encoding of bytes already in memory.
+pub fn source_from_bytes(
+    bytes: &[u8],
+    label: &str,
+    base_dir: &Path,
+) -> Result<Source, SchemeError> {
+    let fail = |m: String| SchemeError {
+        file: label.to_string(),
+        problems: vec![whole_file_problem(m)],
+    };
+    if bytes.len() > MAX_FILE_BYTES {
+        return Err(fail(format!(
+            "the file is {} bytes; a scheme file may be at most {} bytes (1 MiB)",
+            bytes.len(),
+            MAX_FILE_BYTES
+        )));
+    }
+    let text = match std::str::from_utf8(bytes) {
+        Ok(t) => t,
+        Err(e) => {
+            let upto = &bytes[..e.valid_up_to()];
+            let line = upto.iter().filter(|b| **b == b'\n').count() + 1;
+            return Err(SchemeError {
+                file: label.to_string(),
+                problems: vec![Problem {
+                    field: String::new(),
+                    line: Some(line),
+                    column: None,
+                    message: format!(
+                        "the file is not UTF-8 text (invalid byte at offset {}); save it as UTF-8",
+                        e.valid_up_to()
+                    ),
+                }],
+            });
+        }
+    };
+    if text.contains('\0') {
+        return Err(fail(
+            "the file contains NUL bytes: it is binary, not a YAML scheme file".into(),
+        ));
+    }
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    Ok(Source {
+        label: label.to_string(),
+        base_dir: base_dir.to_path_buf(),
+        text: text.to_string(),
+    })
+}
+
+/// Levenshtein distance, for "did you mean".
+fn edit_distance(a: &str, b: &str) -> usize {
+    let b: Vec<char> = b.chars().collect();
+    let mut prev: Vec<usize> = (0..=b.len()).collect();
+    for (i, ca) in a.chars().enumerate() {
+        let mut cur = vec![i + 1; b.len() + 1];
+        for (j, cb) in b.iter().enumerate() {
+            let cost = usize::from(ca != *cb);
+            cur[j + 1] = (prev[j] + cost).min(prev[j + 1] + 1).min(cur[j] + 1);
+        }
+        prev = cur;
+    }
+    prev[b.len()]
+}
+
+/// The closest known key, if it is close enough to be a likely typo.
+pub fn closest<'a>(unknown: &str, known: &[&'a str]) -> Option<&'a str> {
+    let limit = (unknown.chars().count() / 3).max(2);
+    known
+        .iter()
+        .map(|k| (edit_distance(unknown, k), *k))
+        .filter(|(d, _)| *d <= limit)
+        .min()
+        .map(|(_, k)| k)
+}
+
+fn backticked(s: &str) -> Vec<&str> {
+    s.split('`').skip(1).step_by(2).collect()
+}
+
+/// Parses the YAML and fills the raw types, collecting every unknown key and wrong type.
+pub fn parse_raw(src: &Source) -> Result<(RawScheme, LineMap), SchemeError> {
+    let fail = |problems: Vec<Problem>| SchemeError {
+        file: src.label.clone(),
+        problems,
+    };
+    if src.text.trim().is_empty() {
+        return Err(fail(vec![whole_file_problem(
+            "the file is empty; start from a template with `tapplan new FILE`".into(),
+        )]));
+    }
+    let mut value: serde_yaml::Value = match serde_yaml::from_str(&src.text) {
+        Ok(v) => v,
+        Err(e) => {
+            let (line, column) = e
+                .location()
+                .map(|l| (Some(l.line()), Some(l.column())))
+                .unwrap_or((None, None));
+            return Err(fail(vec![Problem {
+                field: String::new(),
+                line,
+                column,
+                message: format!("not valid YAML: {e}"),
+            }]));
+        }
+    };
+    let lines = LineMap::build(&src.text);
+    if lines.max_depth() > MAX_NESTING {
+        return Err(fail(vec![whole_file_problem(format!(
+            "the YAML is nested {} levels deep; a scheme needs at most a handful (limit {MAX_NESTING})",
+            lines.max_depth()
+        ))]));
+    }
+    if !value.is_mapping() {
+        return Err(fail(vec![Problem {
+            field: String::new(),
+            line: Some(1),
+            column: None,
+            message: "a scheme file is a YAML mapping with sections `scheme`, `demand`, `pumps`, `tank`, `targets`, …; start from a template with `tapplan new FILE`".into(),
+        }]));
+    }
+    let mut problems = Vec::new();
+    for _ in 0..200 {
+        match serde_path_to_error::deserialize::<_, RawScheme>(value.clone()) {
+            Ok(raw) => {
+                if problems.is_empty() {
+                    return Ok((raw, lines));
+                }
+                return Err(fail(problems));
+            }
+            Err(err) => {
+                let path = err.path().to_string();
+                let path = if path == "." { String::new() } else { path };
+                let msg = err.into_inner().to_string();
+                let (problem, removable) = describe_serde_error(&path, &msg, &lines);
+                let stop = match &removable {
+                    Some(p) => !remove_path(&mut value, p),
+                    None => true,
+                };
+                problems.push(problem);
+                if stop {
+                    return Err(fail(problems));
+                }
+            }
+        }
+    }
+    Err(fail(problems))
+}
+
+/// Turns one serde error into a problem; returns the path to remove to continue checking.
+fn describe_serde_error(path: &str, msg: &str, lines: &LineMap) -> (Problem, Option<String>) {
+    let locate = |p: &str| lines.locate(p);
+    if let Some(rest) = msg.strip_prefix("unknown field ") {
+        let names = backticked(rest);
+        let unknown = names.first().copied().unwrap_or("?");
+        let known: Vec<&str> = names.iter().skip(1).copied().collect();
+        let field = if path.is_empty() {
+            unknown.to_string()
+        } else if path == unknown || path.ends_with(&format!(".{unknown}")) {
+            path.to_string()
+        } else {
+            format!("{path}.{unknown}")
+        };
+        let mut message = format!("unknown key `{unknown}`");
+        if let Some(s) = closest(unknown, &known) {
+            message.push_str(&format!("; did you mean `{s}`?"));
+        }
+        message.push_str(&format!(" Keys allowed here: {}", known.join(", ")));
+        let (line, column) = locate(&field).map_or((None, None), |(l, c)| (Some(l), Some(c)));
+        return (
+            Problem {
+                field: field.clone(),
+                line,
+                column,
+                message,
+            },
+            Some(field),
+        );
+    }
+    if let Some(rest) = msg.strip_prefix("missing field ") {
+        let names = backticked(rest);
+        let missing = names.first().copied().unwrap_or("?");
+        let field = if path.is_empty() {
+            missing.to_string()
+        } else {
+            format!("{path}.{missing}")
+        };
+        let (line, column) = locate(path).map_or((None, None), |(l, c)| (Some(l), Some(c)));
+        return (
+            Problem {
+                field,
+                line,
+                column,
+                message: format!(
+                    "required key `{missing}` is missing{}; see the file format in README.md or start from `tapplan new`",
+                    if path.is_empty() {
+                        String::new()
+                    } else {
+                        format!(" from `{path}`")
+                    }
+                ),
+            },
+            None,
+        );
+    }
+    let (line, column) = locate(path).map_or((None, None), |(l, c)| (Some(l), Some(c)));
+    let message = if msg.contains("untagged enum RawProfile") {
+        "give a built-in profile name (communal_taps, yard_taps, flat) or a list of 24 hourly factors".to_string()
+    } else if let Some(rest) = msg.strip_prefix("invalid type: ") {
+        format!("wrong kind of value: {rest}")
+    } else {
+        msg.to_string()
+    };
+    let removable = if path.ends_with(']') || path.is_empty() {
+        None
+    } else {
+        Some(path.to_string())
+    };
+    (
+        Problem {
+            field: path.to_string(),
+            line,
+            column,
+            message,
+        },
+        removable,
+    )
+}
+
+/// Removes the mapping entry at a dotted path (`a.b[2].c`). Returns false if not found.
+fn remove_path(value: &mut serde_yaml::Value, path: &str) -> bool {
+    let mut segs: Vec<Seg> = Vec::new();
+    for part in path.split('.') {
+        let (name, rest) = match part.find('[') {
+            Some(i) => (&part[..i], &part[i..]),
+            None => (part, ""),
+        };
+        if !name.is_empty() {
+            segs.push(Seg::Key(name.to_string()));
+        }
+        for idx in rest.split('[').filter(|s| !s.is_empty()) {
+            match idx.trim_end_matches(']').parse() {
+                Ok(i) => segs.push(Seg::Index(i)),
+                Err(_) => return false,
+            }
+        }
+    }
+    let Some(Seg::Key(last)) = segs.pop() else {
+        return false;
+    };
+    let mut cur = value;
+    for s in segs {
+        cur = match (s, cur) {
+            (Seg::Key(k), serde_yaml::Value::Mapping(m)) => match m.get_mut(k.as_str()) {
+                Some(v) => v,
+                None => return false,
+            },
+            (Seg::Index(i), serde_yaml::Value::Sequence(v)) => match v.get_mut(i) {
+                Some(v) => v,
+                None => return false,
+            },
+            _ => return false,
+        };
+    }
+    match cur {
+        serde_yaml::Value::Mapping(m) => m.remove(last.as_str()).is_some(),
+        _ => false,
+    }
+}
+
+enum Seg {
+    Key(String),
+    Index(usize),
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn line_map_finds_nested_fields() {
+        let text = "a:\n  b: 1\n  c:\n    - x: 2\n    - x: 3\n      y: 4\n";
+        let m = LineMap::build(text);
+        assert_eq!(m.locate("a.b"), Some((2, 3)));
+        assert_eq!(m.locate("a.c[1].y"), Some((6, 7)));
+        assert_eq!(m.locate("a.c[1].zz").map(|p| p.0), Some(5));
+    }
+
+    #[test]
+    fn closest_key_suggests_typos_only() {
+        let known = ["population", "growth", "per_capita_l_per_day"];
+        assert_eq!(closest("popluation", &known), Some("population"));
+        assert_eq!(closest("xyz", &known), None);
+    }
+}
