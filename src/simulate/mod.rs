@@ -1,1 +1,1037 @@
-//! (to be written)
+//! The hourly tank balance over a year, an ensemble of weather years, and the design horizon.
+//!
+//! `Model::new` prepares everything that does not depend on the design (demand shape, PV
+//! power per Wp for each weather year, tabulated pump–system operating points, the Theis
+//! kernel of each borehole). `Model::run_year` then runs one year for one `Design` in a single
+//! pass over 8,760 hours; `run_ensemble` runs every weather year; `horizon` runs every year from
+//! the base year to the horizon. The operating rules the engine follows are listed in
+//! `Model::rules` and shown with every result: they move shortfall hours a great deal.
+
+pub mod hydraulics;
+pub mod inputs;
+
+use serde::Serialize;
+
+use crate::error::Error;
+use crate::physics::drives;
+use crate::scheme::{DriveKind, JudgedOn, PumpKind, Scheme, WeatherMode};
+use crate::weather::{HOURS_IN_YEAR, month_of_day};
+use hydraulics::{KERNEL_HOURS, PumpTables, SystemCurve, TAIL_DAYS, TheisKernel};
+pub use inputs::{DailyDemand, SolarYear, daily_demand};
+
+/// A design to simulate: tank size, units of each pump type (in file order), array size.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct Design {
+    pub tank_m3: f64,
+    pub units: Vec<u32>,
+    /// PV array peak power, W (0 when no pump is solar-driven).
+    pub array_w: f64,
+}
+
+impl Design {
+    /// The design the scheme file itself states, if it states one completely.
+    pub fn from_scheme(s: &Scheme) -> Result<Design, String> {
+        let tank = s
+            .tank
+            .capacity_m3
+            .ok_or("the file gives no tank.capacity_m3; give one or use --tank-m3")?;
+        let mut units = Vec::new();
+        for p in &s.pumps {
+            units.push(p.units.ok_or_else(|| {
+                format!(
+                    "pump `{}` has no `units`; give the installed count or use --pumps {}=N",
+                    p.name, p.name
+                )
+            })?);
+        }
+        let array_w = if s.uses_solar() {
+            s.solar
+                .as_ref()
+                .and_then(|x| x.array_peak_w)
+                .ok_or("the file gives no drives.solar.array_kwp; give one or use --array-kwp")?
+        } else {
+            0.0
+        };
+        Ok(Design {
+            tank_m3: tank,
+            units,
+            array_w,
+        })
+    }
+
+    /// "60 m³ tank, 1 × SolarSub-9, 6.0 kWp".
+    pub fn describe(&self, s: &Scheme) -> String {
+        let pumps: Vec<String> = s
+            .pumps
+            .iter()
+            .zip(&self.units)
+            .filter(|(_, n)| **n > 0)
+            .map(|(p, n)| format!("{n} × {}", p.name))
+            .collect();
+        let mut t = format!(
+            "{} m³ tank, {}",
+            fmt_g(self.tank_m3),
+            if pumps.is_empty() {
+                "no pumps".to_string()
+            } else {
+                pumps.join(" + ")
+            }
+        );
+        if s.uses_solar() && self.array_w > 0.0 {
+            t.push_str(&format!(", {:.2} kWp array", self.array_w / 1000.0));
+        }
+        t
+    }
+}
+
+/// A number without trailing zeros ("60", "12.5").
+pub fn fmt_g(v: f64) -> String {
+    let s = format!("{v:.3}");
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    s.to_string()
+}
+
+/// Sums over a month or a year.
+#[derive(Debug, Clone, Copy, Default, Serialize)]
+pub struct Totals {
+    pub demand_m3: f64,
+    pub delivered_m3: f64,
+    pub unmet_m3: f64,
+    pub pumped_m3: f64,
+    pub overflow_m3: f64,
+    pub shortfall_hours: u32,
+    pub pump_run_hours: f64,
+    pub energy_kwh: f64,
+    pub generator_fuel_l: f64,
+    pub grid_energy_kwh: f64,
+    pub generator_energy_kwh: f64,
+    pub solar_energy_kwh: f64,
+    pub hand_pumped_m3: f64,
+    pub ram_pumped_m3: f64,
+    pub lowest_level_fraction: f64,
+}
+
+impl Totals {
+    fn new() -> Totals {
+        Totals {
+            lowest_level_fraction: 1.0,
+            ..Default::default()
+        }
+    }
+    pub fn demand_met_fraction(&self) -> f64 {
+        if self.demand_m3 > 0.0 {
+            (self.delivered_m3 / self.demand_m3).clamp(0.0, 1.0)
+        } else {
+            1.0
+        }
+    }
+}
+
+/// The hourly series of one year (index = hour of the year from 1 January 00:00).
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct Hourly {
+    pub demand_m3: Vec<f64>,
+    pub pumped_m3: Vec<f64>,
+    pub delivered_m3: Vec<f64>,
+    pub shortfall_m3: Vec<f64>,
+    pub overflow_m3: Vec<f64>,
+    pub tank_level_m3: Vec<f64>,
+    pub dynamic_water_level_m: Vec<f64>,
+    pub pump_head_m: Vec<f64>,
+    pub pump_power_w: Vec<f64>,
+    pub pump_speed_ratio: Vec<f64>,
+    pub drive_power_available_w: Vec<f64>,
+}
+
+/// One simulated year of one design.
+#[derive(Debug, Clone, Serialize)]
+pub struct YearResult {
+    pub year: i32,
+    pub weather: String,
+    pub population: f64,
+    pub annual: Totals,
+    pub months: [Totals; 12],
+    pub demand_met_fraction: f64,
+    pub longest_dry_spell_hours: u32,
+    /// Pump energy per m³ lifted by motor pumps, kWh/m³.
+    pub specific_energy_kwh_per_m3: Option<f64>,
+    /// Delivered domestic water per person per day, m³ (all uses shared pro rata).
+    pub delivered_m3_per_person_day: f64,
+    /// Least margin between the dynamic water level and the intake's limit while pumping, m.
+    pub drawdown_margin_m: Option<f64>,
+    pub deepest_dynamic_level_m: Option<f64>,
+    pub dry_run_stop_hours: u32,
+    pub yield_capped_hours: u32,
+    pub beyond_curve_hours: u32,
+    pub start_level_m3: f64,
+    pub end_level_m3: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub hourly: Option<Hourly>,
+}
+
+/// Reliability over the weather years of one design and one demand year.
+#[derive(Debug, Clone, Serialize)]
+pub struct Ensemble {
+    pub year: i32,
+    pub years_run: usize,
+    pub median_shortfall_hours: f64,
+    /// The "1 year in 10" figure: 90th percentile of shortfall hours (nearest rank).
+    pub p90_shortfall_hours: f64,
+    pub worst_shortfall_hours: f64,
+    pub median_demand_met_fraction: f64,
+    /// Demand met in the 1-year-in-10 bad year (10th percentile, nearest rank).
+    pub p10_demand_met_fraction: f64,
+    pub worst_demand_met_fraction: f64,
+    pub longest_dry_spell_hours: u32,
+    pub judged_on: JudgedOn,
+    pub judged_shortfall_hours: f64,
+    pub judged_demand_met_fraction: f64,
+    /// Index of the weather year whose shortfall is the judged figure (shown as "the year").
+    pub representative: usize,
+    pub years: Vec<YearResult>,
+}
+
+/// Nearest-rank percentile of sorted values (p in 0–100).
+pub fn nearest_rank(sorted: &[f64], p: f64) -> f64 {
+    if sorted.is_empty() {
+        return 0.0;
+    }
+    let n = sorted.len();
+    let rank = ((p / 100.0) * n as f64).ceil() as usize;
+    sorted[rank.clamp(1, n) - 1]
+}
+
+/// One row of the design-horizon run.
+#[derive(Debug, Clone, Serialize)]
+pub struct HorizonRow {
+    pub year: i32,
+    pub population: f64,
+    pub demand_m3_per_day: f64,
+    pub shortfall_hours: f64,
+    pub demand_met_fraction: f64,
+    pub meets_target: bool,
+}
+
+struct RamUnit {
+    /// Total delivery (m³/s) with n units running, index n.
+    flow_by_units: Vec<f64>,
+    drive_flow_m3_per_s: f64,
+    stream: usize,
+}
+
+/// Everything prepared for a scheme that does not depend on the design.
+pub struct Model {
+    pub scheme: Scheme,
+    pub solar_years: Vec<SolarYear>,
+    shape: Vec<f64>,
+    gen_mask: [bool; 24],
+    grid_mask: [bool; 24],
+    hand_mask: [bool; 24],
+    tables: Vec<Option<PumpTables>>,
+    kernels: Vec<Option<TheisKernel>>,
+    rams: Vec<Option<RamUnit>>,
+    /// Per-unit hand pump flow (m³/s) for each pump type (0 for others).
+    hand_flow: Vec<f64>,
+    /// The operating rules, stated with every result.
+    pub rules: Vec<String>,
+}
+
+impl Model {
+    /// Prepares a scheme with the irradiation as given.
+    pub fn new(scheme: &Scheme) -> Result<Model, Error> {
+        Model::with_irradiation(scheme, 1.0)
+    }
+
+    /// Prepares a scheme with the irradiation scaled by `irradiation_factor`.
+    pub fn with_irradiation(scheme: &Scheme, irradiation_factor: f64) -> Result<Model, Error> {
+        let s = scheme.clone();
+        let solar_years = if s.uses_solar() {
+            inputs::solar_years(&s, irradiation_factor)?
+        } else {
+            Vec::new()
+        };
+        let rho = crate::physics::water::water_density_kg_per_m3(s.info.water_temperature_c);
+        let kernels: Vec<Option<TheisKernel>> = s
+            .boreholes
+            .iter()
+            .map(|b| match (b.transmissivity_m2_per_s, b.storativity) {
+                (Some(t), Some(st)) => Some(TheisKernel::new(t, st, b.diameter_m / 2.0)),
+                _ => None,
+            })
+            .collect();
+        let mut tables = Vec::new();
+        let mut rams = Vec::new();
+        let mut hand_flow = Vec::new();
+        for (i, p) in s.pumps.iter().enumerate() {
+            let mut table = None;
+            let mut ram = None;
+            let mut hand = 0.0;
+            match &p.kind {
+                PumpKind::Curve {
+                    start_power_w,
+                    min_speed_fraction,
+                    ..
+                } => {
+                    let curve = hydraulics::curve_of(&p.kind)
+                        .expect("curve pump")
+                        .map_err(|e| Error::Input(format!("pumps[{i}].curve: {e}")))?;
+                    let b = &s.boreholes[p.source_index];
+                    let a0 = kernels[p.source_index].as_ref().map_or(0.0, |k| k.k[0]);
+                    let system = SystemCurve::new(&s, b, a0);
+                    let max_offset = b.intake_depth_m - b.submergence_margin_m - b.static_depth_m;
+                    table = Some(PumpTables::build(
+                        curve,
+                        system,
+                        max_offset,
+                        p.max_units,
+                        p.drive == DriveKind::Solar,
+                        *min_speed_fraction,
+                        *start_power_w,
+                    ));
+                }
+                PumpKind::Ram {
+                    drive_flow_m3_per_s,
+                    efficiency,
+                    elevation_m,
+                } => {
+                    let st = &s.streams[p.source_index];
+                    let lift = s.tank.inlet_elevation_m - elevation_m;
+                    let sys = s.rising_main.as_ref().map(|_| SystemCurve {
+                        lift0_m: 0.0,
+                        linear_s_per_m2: 0.0,
+                        quad_s2_per_m5: 0.0,
+                        main: s.rising_main.clone(),
+                        nu_m2_per_s: crate::physics::water::water_kinematic_viscosity_m2_per_s(
+                            s.info.water_temperature_c,
+                        ),
+                    });
+                    let mut flows = vec![0.0];
+                    for n in 1..=p.max_units {
+                        // fixed point: delivery head = lift + main loss at the delivered flow
+                        let mut q = 0.0;
+                        for _ in 0..20 {
+                            let h = lift + sys.as_ref().map_or(0.0, |c| c.main_loss_m(q));
+                            q = n as f64
+                                * drives::ram_delivery_flow_m3_per_s(
+                                    *drive_flow_m3_per_s,
+                                    st.usable_fall_m,
+                                    h,
+                                    *efficiency,
+                                )
+                                .unwrap_or(0.0);
+                        }
+                        flows.push(q);
+                    }
+                    ram = Some(RamUnit {
+                        flow_by_units: flows,
+                        drive_flow_m3_per_s: *drive_flow_m3_per_s,
+                        stream: p.source_index,
+                    });
+                }
+                PumpKind::Hand {
+                    stroke_volume_m3,
+                    strokes_per_s,
+                    mechanical_efficiency,
+                    spout_height_m,
+                } => {
+                    let b = &s.boreholes[p.source_index];
+                    let human = s.hand.as_ref().map_or(60.0, |h| h.human_power_w);
+                    let head = b.static_depth_m + spout_height_m;
+                    hand = drives::hand_pump_flow_capped(
+                        human,
+                        *mechanical_efficiency,
+                        head,
+                        rho,
+                        *stroke_volume_m3,
+                        *strokes_per_s,
+                    )
+                    .unwrap_or(0.0);
+                }
+            }
+            tables.push(table);
+            rams.push(ram);
+            hand_flow.push(hand);
+        }
+        let gen_mask = s
+            .generator
+            .as_ref()
+            .map_or([false; 24], |g| inputs::hour_mask(&g.run_hours));
+        let grid_mask = s
+            .grid
+            .as_ref()
+            .map_or([false; 24], |g| inputs::hour_mask(&g.supply_hours));
+        let hand_mask = s
+            .hand
+            .as_ref()
+            .map_or([false; 24], |g| inputs::hour_mask(&g.pumping_hours));
+        let rules = operating_rules(&s);
+        Ok(Model {
+            shape: inputs::demand_shape(&s),
+            scheme: s,
+            solar_years,
+            gen_mask,
+            grid_mask,
+            hand_mask,
+            tables,
+            kernels,
+            rams,
+            hand_flow,
+            rules,
+        })
+    }
+
+    /// Number of weather years in the ensemble (1 when the supply does not depend on weather).
+    pub fn weather_years(&self) -> usize {
+        self.solar_years.len().max(1)
+    }
+
+    /// Runs one year `year_offset` years after the base year, for weather year `weather`.
+    pub fn run_year(
+        &self,
+        design: &Design,
+        year_offset: u32,
+        weather: usize,
+        keep_hourly: bool,
+    ) -> YearResult {
+        self.run_year_scaled(design, year_offset, weather, keep_hourly, 1.0)
+    }
+
+    /// As `run_year` with demand multiplied by `demand_factor`.
+    pub fn run_year_scaled(
+        &self,
+        design: &Design,
+        year_offset: u32,
+        weather: usize,
+        keep_hourly: bool,
+        demand_factor: f64,
+    ) -> YearResult {
+        let dd = daily_demand(&self.scheme, year_offset);
+        let mut st = State::new(self, design, dd.supplied_m3_per_day * demand_factor, weather);
+        // Warm-up: the last 31 days of the year, from the file's initial level.
+        let warm_start = HOURS_IN_YEAR - 31 * 24;
+        for h in warm_start..HOURS_IN_YEAR {
+            st.step(self, h, None);
+        }
+        st.reset_totals();
+        let mut hourly = keep_hourly.then(|| Hourly {
+            demand_m3: Vec::with_capacity(HOURS_IN_YEAR),
+            ..Default::default()
+        });
+        let start_level = st.v;
+        for h in 0..HOURS_IN_YEAR {
+            st.step(self, h, hourly.as_mut());
+        }
+        let s = &self.scheme;
+        let annual = st.annual;
+        let motor_pumped = annual.pumped_m3 - annual.hand_pumped_m3 - annual.ram_pumped_m3;
+        let domestic_share = if dd.consumed_m3_per_day > 0.0 {
+            dd.domestic_m3_per_day / dd.consumed_m3_per_day
+        } else {
+            1.0
+        };
+        let delivered_consumed = annual.delivered_m3 * (1.0 - s.demand.losses_fraction);
+        YearResult {
+            year: s.info.base_year + year_offset as i32,
+            weather: if self.solar_years.is_empty() {
+                "weather-independent drive".into()
+            } else {
+                self.solar_years[weather.min(self.solar_years.len() - 1)]
+                    .label
+                    .clone()
+            },
+            population: dd.population,
+            demand_met_fraction: annual.demand_met_fraction(),
+            annual,
+            months: st.months,
+            longest_dry_spell_hours: st.longest_spell,
+            specific_energy_kwh_per_m3: (motor_pumped > 1e-9)
+                .then(|| (annual.energy_kwh / motor_pumped).max(0.0)),
+            delivered_m3_per_person_day: if dd.population > 0.0 {
+                delivered_consumed * domestic_share / dd.population / 365.0
+            } else {
+                0.0
+            },
+            drawdown_margin_m: st.min_margin,
+            deepest_dynamic_level_m: st.deepest,
+            dry_run_stop_hours: st.dry_run_hours,
+            yield_capped_hours: st.capped_hours,
+            beyond_curve_hours: st.beyond_hours,
+            start_level_m3: start_level,
+            end_level_m3: st.v,
+            hourly,
+        }
+    }
+
+    /// Runs every weather year and summarises reliability.
+    pub fn run_ensemble(&self, design: &Design, year_offset: u32) -> Ensemble {
+        self.run_ensemble_scaled(design, year_offset, 1.0)
+    }
+
+    /// As `run_ensemble` with demand multiplied by `demand_factor`.
+    pub fn run_ensemble_scaled(
+        &self,
+        design: &Design,
+        year_offset: u32,
+        demand_factor: f64,
+    ) -> Ensemble {
+        let years: Vec<YearResult> = (0..self.weather_years())
+            .map(|w| self.run_year_scaled(design, year_offset, w, false, demand_factor))
+            .collect();
+        summarise(&self.scheme, years)
+    }
+
+    /// Runs every year from the base year to the horizon.
+    pub fn horizon(&self, design: &Design) -> Vec<HorizonRow> {
+        (0..=self.scheme.info.horizon_years)
+            .map(|y| {
+                let e = self.run_ensemble(design, y);
+                let dd = daily_demand(&self.scheme, y);
+                HorizonRow {
+                    year: e.year,
+                    population: dd.population,
+                    demand_m3_per_day: dd.supplied_m3_per_day,
+                    shortfall_hours: e.judged_shortfall_hours,
+                    demand_met_fraction: e.judged_demand_met_fraction,
+                    meets_target: meets_target(&self.scheme, &e),
+                }
+            })
+            .collect()
+    }
+}
+
+/// True when the ensemble's judged figures meet the scheme's targets.
+pub fn meets_target(s: &Scheme, e: &Ensemble) -> bool {
+    let t = &s.targets;
+    t.max_shortfall_hours_per_year
+        .is_none_or(|m| e.judged_shortfall_hours <= m + 1e-9)
+        && t.min_demand_met_fraction
+            .is_none_or(|m| e.judged_demand_met_fraction >= m - 1e-12)
+}
+
+/// Summarises the weather years of one design.
+pub fn summarise(s: &Scheme, years: Vec<YearResult>) -> Ensemble {
+    let mut sh: Vec<f64> = years
+        .iter()
+        .map(|y| y.annual.shortfall_hours as f64)
+        .collect();
+    sh.sort_by(f64::total_cmp);
+    let mut met: Vec<f64> = years.iter().map(|y| y.demand_met_fraction).collect();
+    met.sort_by(f64::total_cmp);
+    let judged_on = s.targets.judged_on;
+    let median_sh = nearest_rank(&sh, 50.0);
+    let p90_sh = nearest_rank(&sh, 90.0);
+    let median_met = nearest_rank(&met, 50.0);
+    let p10_met = nearest_rank(&met, 10.0);
+    let (judged_sh, judged_met) = match judged_on {
+        JudgedOn::Median => (median_sh, median_met),
+        JudgedOn::P90 => (p90_sh, p10_met),
+    };
+    let representative = years
+        .iter()
+        .position(|y| (y.annual.shortfall_hours as f64 - judged_sh).abs() < 0.5)
+        .unwrap_or(0);
+    Ensemble {
+        year: years.first().map_or(s.info.base_year, |y| y.year),
+        years_run: years.len(),
+        median_shortfall_hours: median_sh,
+        p90_shortfall_hours: p90_sh,
+        worst_shortfall_hours: sh.last().copied().unwrap_or(0.0),
+        median_demand_met_fraction: median_met,
+        p10_demand_met_fraction: p10_met,
+        worst_demand_met_fraction: met.first().copied().unwrap_or(1.0),
+        longest_dry_spell_hours: years
+            .iter()
+            .map(|y| y.longest_dry_spell_hours)
+            .max()
+            .unwrap_or(0),
+        judged_on,
+        judged_shortfall_hours: judged_sh,
+        judged_demand_met_fraction: judged_met,
+        representative,
+        years,
+    }
+}
+
+/// The operating rules the engine follows, in plain words, for results and the plan.
+pub fn operating_rules(s: &Scheme) -> Vec<String> {
+    let mut r = vec![
+        "Hourly time step over a 365-day year; solar time is taken as clock time.".to_string(),
+        "The year starts from the state reached by first running the last 31 days of the year from the file's initial tank level (warm-up), so the start is not an arbitrary full or empty tank.".to_string(),
+        format!(
+            "Level control: motor pumps start when the tank is below {:.0} % of its usable volume at the start of an hour and stop when it is full; when the tank fills part-way through an hour the pumps stop for the rest of that hour.",
+            s.tank.pump_start_level_fraction * 100.0
+        ),
+        format!(
+            "Usable storage is {:.0} % of the tank capacity.",
+            s.tank.usable_fraction * 100.0
+        ),
+        "Demand is served from the tank; demand the tank cannot serve is shortfall, and an hour with any unmet demand counts as a shortfall hour.".to_string(),
+        format!(
+            "Losses ({:.0} %) are a share of the water supplied (IWA water-balance convention): supplied = consumed / (1 − losses).",
+            s.demand.losses_fraction * 100.0
+        ),
+        "Each borehole's pumping is capped at its safe yield (tested yield × safe-yield fraction); a variable-speed pump slows to the cap, a fixed-speed pump is throttled to it.".to_string(),
+        "Dry-run protection: a pump stops for the hour when the dynamic water level would fall below the intake minus the submergence margin.".to_string(),
+        format!(
+            "Aquifer drawdown: Theis superposition of the hourly pumping of the last {KERNEL_HOURS} hours, plus the mean rate of the {TAIL_DAYS} days before as a constant-rate tail; Jacob's well loss BQ + CQ² is added at the current flow."
+        ),
+        "A pump's input power in its curve is taken as the electrical input (wire-to-water); operating points outside the curve's table are flagged, not extrapolated.".to_string(),
+    ];
+    if s.uses_solar() {
+        r.push("Solar drive: the pump speed follows the power available (affinity laws); with several units on one array the engine runs the number of units, each with an equal share of the power, that delivers the most water, and a unit stays off below its start power or when its speed cannot reach the static head.".to_string());
+        r.push("PV power per hour: Collares-Pereira & Rabl hourly split of the daily total, Erbs daily diffuse fraction, Liu & Jordan diffuse split, isotropic-sky tilted plane, NOCT cell temperature with the monthly mean air temperature, temperature coefficient and the derating chain.".to_string());
+        match &s.weather.mode {
+            WeatherMode::MeanDays => r.push("Weather: every day of a month is that month's mean day (no cloudy spells): reliability is optimistic for solar pumping.".to_string()),
+            WeatherMode::Synthetic { seed, years } => r.push(format!("Weather: {years} synthetic years of daily clearness with day-to-day persistence (seed {seed}); the target is judged on the {} of shortfall hours over those years.", match s.targets.judged_on { JudgedOn::Median => "median", JudgedOn::P90 => "90th percentile (1 year in 10)" })),
+            WeatherMode::File { path } => r.push(format!("Weather: hourly global horizontal irradiance and air temperature from `{}`; every year in the file is run.", path.file_name().map(|f| f.to_string_lossy().into_owned()).unwrap_or_default())),
+        }
+    }
+    if s.pumps.iter().any(|p| matches!(p.drive, DriveKind::Generator | DriveKind::Grid)) {
+        r.push("Generator and grid pumps run at rated speed within their allowed hours; as many units run as the drive's power allows (each drawing its curve power at the operating point); the generator runs only while pumps run, and its fuel follows the linear fuel curve a·P_rated + b·P_out.".to_string());
+    }
+    if s.pumps.iter().any(|p| p.drive == DriveKind::Hand) {
+        r.push("Hand pumps serve demand directly at the well during the pumping hours (one person per pump at the stated sustained power); demand outside those hours must come from the tank.".to_string());
+    }
+    if s.pumps.iter().any(|p| p.drive == DriveKind::Ram) {
+        r.push("Rams run continuously; as many rams run as the month's stream flow can drive; what they deliver to a full tank overflows.".to_string());
+    }
+    r.push("Pump types on the same borehole are solved one after another, each against its own system curve; drive power left by one type goes to the next, in file order.".to_string());
+    r
+}
+
+/// The state of one year's run.
+struct State<'a> {
+    design: &'a Design,
+    weather: usize,
+    daily_demand_m3: f64,
+    usable_m3: f64,
+    v: f64,
+    pumps_on: bool,
+    /// Per borehole: hourly flow history ring (m³/s), daily sums ring (m³), counters.
+    q_hist: Vec<[f64; KERNEL_HOURS]>,
+    day_sums: Vec<[f64; TAIL_DAYS]>,
+    today: Vec<f64>,
+    hist_pos: usize,
+    annual: Totals,
+    months: [Totals; 12],
+    spell: u32,
+    longest_spell: u32,
+    min_margin: Option<f64>,
+    deepest: Option<f64>,
+    dry_run_hours: u32,
+    capped_hours: u32,
+    beyond_hours: u32,
+}
+
+impl<'a> State<'a> {
+    fn new(m: &Model, design: &'a Design, daily_demand_m3: f64, weather: usize) -> State<'a> {
+        let usable = design.tank_m3 * m.scheme.tank.usable_fraction;
+        let nb = m.scheme.boreholes.len();
+        let v = usable * m.scheme.tank.initial_level_fraction;
+        State {
+            design,
+            weather,
+            daily_demand_m3,
+            usable_m3: usable,
+            v,
+            pumps_on: v < usable * m.scheme.tank.pump_start_level_fraction,
+            q_hist: vec![[0.0; KERNEL_HOURS]; nb],
+            day_sums: vec![[0.0; TAIL_DAYS]; nb],
+            today: vec![0.0; nb],
+            hist_pos: 0,
+            annual: Totals::new(),
+            months: [Totals::new(); 12],
+            spell: 0,
+            longest_spell: 0,
+            min_margin: None,
+            deepest: None,
+            dry_run_hours: 0,
+            capped_hours: 0,
+            beyond_hours: 0,
+        }
+    }
+
+    fn reset_totals(&mut self) {
+        self.annual = Totals::new();
+        self.months = [Totals::new(); 12];
+        self.spell = 0;
+        self.longest_spell = 0;
+        self.min_margin = None;
+        self.deepest = None;
+        self.dry_run_hours = 0;
+        self.capped_hours = 0;
+        self.beyond_hours = 0;
+    }
+
+    /// Drawdown left by earlier pumping at borehole b, m.
+    fn past_drawdown(&self, m: &Model, b: usize) -> f64 {
+        let Some(k) = &m.kernels[b] else {
+            return 0.0;
+        };
+        let hist = &self.q_hist[b];
+        let mut s = 0.0;
+        for j in 1..KERNEL_HOURS {
+            let idx = (self.hist_pos + KERNEL_HOURS - j) % KERNEL_HOURS;
+            s += hist[idx] * k.k[j];
+        }
+        let mean_q = self.day_sums[b].iter().sum::<f64>() / (TAIL_DAYS as f64 * 86_400.0);
+        s + mean_q * k.tail
+    }
+
+    fn step(&mut self, m: &Model, h: usize, hourly: Option<&mut Hourly>) {
+        let s = &m.scheme;
+        let hour = (h % 24) as u8;
+        let month = month_of_day(h / 24);
+        let demand = self.daily_demand_m3 * m.shape[h];
+        let nb = s.boreholes.len();
+        // remaining safe yield this hour, m³/s
+        let mut cap: Vec<f64> = s.boreholes.iter().map(|b| b.safe_yield_m3_per_s()).collect();
+        let mut bh_hand = vec![0.0; nb];
+        let mut bh_motor = vec![0.0; nb];
+
+        // hand pumps serve demand directly
+        let mut hand_served = 0.0;
+        if m.hand_mask[hour as usize] {
+            for (i, p) in s.pumps.iter().enumerate() {
+                let n = self.design.units.get(i).copied().unwrap_or(0);
+                if p.drive != DriveKind::Hand || n == 0 {
+                    continue;
+                }
+                let b = p.source_index;
+                let q = (m.hand_flow[i] * n as f64).min(cap[b]);
+                let served = (q * 3600.0).min(demand - hand_served);
+                hand_served += served;
+                cap[b] -= served / 3600.0;
+                bh_hand[b] += served / 3600.0;
+            }
+        }
+        let d = demand - hand_served;
+
+        // level control, read at the start of the hour
+        if !self.pumps_on && self.v < self.usable_m3 * s.tank.pump_start_level_fraction {
+            self.pumps_on = true;
+        }
+
+        // drive power available
+        let solar_w = if m.solar_years.is_empty() {
+            0.0
+        } else {
+            self.design.array_w * m.solar_years[self.weather.min(m.solar_years.len() - 1)].w_per_wp[h]
+        };
+        let mut pool_solar = solar_w;
+        let mut pool_gen = match &s.generator {
+            Some(g) if m.gen_mask[hour as usize] => g.rated_w,
+            _ => 0.0,
+        };
+        let mut pool_grid = match &s.grid {
+            Some(g) if m.grid_mask[hour as usize] => g.available_w,
+            _ => 0.0,
+        };
+        let available = pool_solar + pool_gen + pool_grid;
+
+        // motor pumps
+        let mut motor_q = 0.0;
+        let (mut p_solar, mut p_gen, mut p_grid) = (0.0, 0.0, 0.0);
+        let mut head = 0.0;
+        let mut speed = 0.0;
+        let mut depth_rec: Option<f64> = None;
+        if self.pumps_on {
+            for (i, p) in s.pumps.iter().enumerate() {
+                let n_inst = self.design.units.get(i).copied().unwrap_or(0);
+                let Some(t) = &m.tables[i] else { continue };
+                if n_inst == 0 {
+                    continue;
+                }
+                let b = p.source_index;
+                let bore = &s.boreholes[b];
+                let s_past = self.past_drawdown(m, b);
+                if s_past > t.max_offset_m {
+                    self.dry_run_hours += 1;
+                    continue;
+                }
+                let pool = match p.drive {
+                    DriveKind::Solar => &mut pool_solar,
+                    DriveKind::Generator => &mut pool_gen,
+                    _ => &mut pool_grid,
+                };
+                let variable = p.drive == DriveKind::Solar;
+                let mut best: Option<(u32, hydraulics::Point)> = None;
+                if variable {
+                    for n in 1..=n_inst {
+                        if let Some(pt) = t.point(n, *pool, s_past) {
+                            if best.is_none_or(|(_, b)| pt.flow_m3_per_s > b.flow_m3_per_s) {
+                                best = Some((n, pt));
+                            }
+                        }
+                    }
+                } else {
+                    for n in (1..=n_inst).rev() {
+                        if let Some(pt) = t.point(n, 0.0, s_past) {
+                            if pt.power_w <= *pool + 1e-9 {
+                                best = Some((n, pt));
+                                break;
+                            }
+                        }
+                    }
+                }
+                let Some((n, mut pt)) = best else { continue };
+                if pt.flow_m3_per_s <= 0.0 {
+                    continue;
+                }
+                // safe-yield cap
+                if pt.flow_m3_per_s > cap[b] {
+                    self.capped_hours += 1;
+                    let q_cap = cap[b].max(0.0);
+                    if q_cap <= 1e-12 {
+                        continue;
+                    }
+                    if variable {
+                        let (mut lo, mut hi) = (0.0, pt.power_w);
+                        for _ in 0..40 {
+                            let mid = 0.5 * (lo + hi);
+                            let f = t.point(n, mid, s_past).map_or(0.0, |x| x.flow_m3_per_s);
+                            if f > q_cap { hi = mid } else { lo = mid }
+                        }
+                        pt = t.point(n, hi, s_past).unwrap_or(pt);
+                        pt.flow_m3_per_s = q_cap;
+                    } else {
+                        let pw = t.curve.power_at_clamped(q_cap / n as f64).value * n as f64;
+                        pt.power_w = pw;
+                        pt.flow_m3_per_s = q_cap;
+                    }
+                }
+                // dry-run protection
+                let depth = bore.static_depth_m + s_past + t.system.well_drawdown_m(pt.flow_m3_per_s);
+                let limit = bore.intake_depth_m - bore.submergence_margin_m;
+                if depth > limit {
+                    self.dry_run_hours += 1;
+                    continue;
+                }
+                let margin = limit - depth;
+                self.min_margin = Some(self.min_margin.map_or(margin, |x: f64| x.min(margin)));
+                self.deepest = Some(self.deepest.map_or(depth, |x: f64| x.max(depth)));
+                depth_rec = Some(depth);
+                if pt.beyond_table {
+                    self.beyond_hours += 1;
+                }
+                *pool -= pt.power_w;
+                match p.drive {
+                    DriveKind::Solar => p_solar += pt.power_w,
+                    DriveKind::Generator => p_gen += pt.power_w,
+                    _ => p_grid += pt.power_w,
+                }
+                cap[b] -= pt.flow_m3_per_s;
+                bh_motor[b] += pt.flow_m3_per_s;
+                motor_q += pt.flow_m3_per_s;
+                head = pt.head_m;
+                speed = pt.speed_ratio;
+            }
+        }
+
+        // rams run continuously
+        let mut ram_q = 0.0;
+        for (i, r) in m.rams.iter().enumerate() {
+            let Some(r) = r else { continue };
+            let n_inst = self.design.units.get(i).copied().unwrap_or(0);
+            let stream = &s.streams[r.stream];
+            let flow = stream.flow_m3_per_s * stream.monthly_flow_factors[month];
+            let n_drive = (flow / r.drive_flow_m3_per_s + 1e-9).floor() as u32;
+            let n = n_inst.min(n_drive).min(r.flow_by_units.len() as u32 - 1);
+            ram_q += r.flow_by_units[n as usize];
+        }
+
+        // tank balance over the hour
+        let motor = motor_q * 3600.0;
+        let ram = ram_q * 3600.0;
+        let v0 = self.v;
+        let mut run_fraction = if motor > 0.0 { 1.0 } else { 0.0 };
+        let mut overflow = 0.0;
+        let mut v;
+        if motor > 0.0 {
+            let net = motor + ram - d;
+            if v0 + net > self.usable_m3 {
+                let f = ((self.usable_m3 - v0) / net).clamp(0.0, 1.0);
+                run_fraction = f;
+                let rest = (ram - d) * (1.0 - f);
+                if rest >= 0.0 {
+                    overflow = rest;
+                    v = self.usable_m3;
+                } else {
+                    v = self.usable_m3 + rest;
+                }
+                self.pumps_on = false;
+            } else {
+                v = v0 + net;
+            }
+        } else {
+            v = v0 + ram - d;
+            if v > self.usable_m3 {
+                overflow = v - self.usable_m3;
+                v = self.usable_m3;
+            }
+        }
+        let mut shortfall = 0.0;
+        if v < 0.0 {
+            shortfall = -v;
+            v = 0.0;
+        }
+        self.v = v;
+        let motor_used = motor * run_fraction;
+        let pumped = motor_used + ram + hand_served;
+        let delivered = demand - shortfall;
+        debug_assert!(
+            (pumped - delivered - overflow - (v - v0)).abs() <= 1e-6 * (1.0 + pumped + demand),
+            "water balance broken at hour {h}"
+        );
+
+        // aquifer history: the hour's mean flow per borehole
+        for b in 0..nb {
+            // motor pumps ran only `run_fraction` of the hour
+            let mean_q = bh_hand[b] + bh_motor[b] * run_fraction;
+            self.q_hist[b][self.hist_pos] = mean_q;
+            self.today[b] += mean_q * 3600.0;
+        }
+        self.hist_pos = (self.hist_pos + 1) % KERNEL_HOURS;
+        if hour == 23 {
+            let day = h / 24;
+            for b in 0..nb {
+                self.day_sums[b][day % TAIL_DAYS] = self.today[b];
+                self.today[b] = 0.0;
+            }
+        }
+
+        // energy and fuel
+        let hours = run_fraction;
+        let e_solar = p_solar * hours / 1000.0;
+        let e_gen = p_gen * hours / 1000.0;
+        let e_grid = p_grid * hours / 1000.0;
+        let fuel = match &s.generator {
+            Some(g) if p_gen > 0.0 => {
+                drives::generator_fuel_l_per_h(
+                    g.rated_w,
+                    p_gen,
+                    g.fuel_l_per_kwh_rated,
+                    g.fuel_l_per_kwh_output,
+                ) * hours
+            }
+            _ => 0.0,
+        };
+
+        // totals
+        let level_frac = if self.usable_m3 > 0.0 { v / self.usable_m3 } else { 0.0 };
+        let short_hour = shortfall > 1e-6;
+        for t in [&mut self.annual, &mut self.months[month]] {
+            t.demand_m3 += demand;
+            t.delivered_m3 += delivered;
+            t.unmet_m3 += shortfall;
+            t.pumped_m3 += pumped;
+            t.overflow_m3 += overflow;
+            t.shortfall_hours += u32::from(short_hour);
+            t.pump_run_hours += hours;
+            t.energy_kwh += e_solar + e_gen + e_grid;
+            t.solar_energy_kwh += e_solar;
+            t.generator_energy_kwh += e_gen;
+            t.grid_energy_kwh += e_grid;
+            t.generator_fuel_l += fuel;
+            t.hand_pumped_m3 += hand_served;
+            t.ram_pumped_m3 += ram;
+            t.lowest_level_fraction = t.lowest_level_fraction.min(level_frac);
+        }
+        if short_hour {
+            self.spell += 1;
+            self.longest_spell = self.longest_spell.max(self.spell);
+        } else {
+            self.spell = 0;
+        }
+        if let Some(hr) = hourly {
+            hr.demand_m3.push(demand);
+            hr.pumped_m3.push(pumped);
+            hr.delivered_m3.push(delivered);
+            hr.shortfall_m3.push(shortfall);
+            hr.overflow_m3.push(overflow);
+            hr.tank_level_m3.push(v);
+            hr.dynamic_water_level_m.push(depth_rec.unwrap_or(f64::NAN));
+            hr.pump_head_m.push(if motor_used > 0.0 { head } else { 0.0 });
+            hr.pump_power_w.push((p_solar + p_gen + p_grid) * hours);
+            hr.pump_speed_ratio.push(if motor_used > 0.0 { speed } else { 0.0 });
+            hr.drive_power_available_w.push(available);
+        }
+    }
+}
+
+/// Overrides to the file's design from the command line.
+#[derive(Debug, Clone, Default)]
+pub struct DesignOverrides {
+    pub tank_m3: Option<f64>,
+    /// (pump name, units).
+    pub pumps: Vec<(String, u32)>,
+    pub array_kwp: Option<f64>,
+}
+
+/// The file's design with command-line overrides applied; every part must end up given.
+pub fn resolve_design(s: &Scheme, o: &DesignOverrides) -> Result<Design, String> {
+    let tank = match o.tank_m3 {
+        Some(t) if t.is_finite() && t > 0.0 && t <= 20_000.0 => t,
+        Some(t) => return Err(format!("--tank-m3 {t}: give a tank capacity above 0 and up to 20000 m³")),
+        None => s
+            .tank
+            .capacity_m3
+            .ok_or("the file gives no tank.capacity_m3; give one or use --tank-m3")?,
+    };
+    let mut units: Vec<Option<u32>> = s.pumps.iter().map(|p| p.units).collect();
+    for (name, n) in &o.pumps {
+        let Some(i) = s.pumps.iter().position(|p| &p.name == name) else {
+            let names: Vec<&str> = s.pumps.iter().map(|p| p.name.as_str()).collect();
+            return Err(format!(
+                "--pumps {name}={n}: the scheme has no pump type `{name}`; its pump types are: {}",
+                names.join(", ")
+            ));
+        };
+        if *n > s.pumps[i].max_units {
+            return Err(format!(
+                "--pumps {name}={n}: at most {} units of `{name}` may be installed (pumps[{i}].max_units)",
+                s.pumps[i].max_units
+            ));
+        }
+        units[i] = Some(*n);
+    }
+    let mut out = Vec::new();
+    for (p, u) in s.pumps.iter().zip(units) {
+        out.push(u.ok_or_else(|| {
+            format!(
+                "pump `{}` has no `units` in the file; give the installed count with --pumps {}=N",
+                p.name, p.name
+            )
+        })?);
+    }
+    let array_w = if s.uses_solar() {
+        match o.array_kwp {
+            Some(k) if k.is_finite() && k > 0.0 && k <= 1000.0 => k * 1000.0,
+            Some(k) => return Err(format!("--array-kwp {k}: give an array size above 0 and up to 1000 kWp")),
+            None => s
+                .solar
+                .as_ref()
+                .and_then(|x| x.array_peak_w)
+                .ok_or("the file gives no drives.solar.array_kwp; give one or use --array-kwp")?,
+        }
+    } else {
+        0.0
+    };
+    Ok(Design {
+        tank_m3: tank,
+        units: out,
+        array_w,
+    })
+}
+
+/// Parses `NAME=N` for `--pumps`.
+pub fn parse_pump_override(arg: &str) -> Result<(String, u32), String> {
+    let (name, n) = arg
+        .rsplit_once('=')
+        .ok_or_else(|| format!("`{arg}`: write the pump type and count as NAME=N, e.g. SolarSub-9=2"))?;
+    let n: u32 = n
+        .trim()
+        .parse()
+        .map_err(|_| format!("`{arg}`: the count after `=` must be a whole number ≥ 0"))?;
+    Ok((name.trim().to_string(), n))
+}

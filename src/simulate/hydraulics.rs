@@ -1,0 +1,292 @@
+//! The borehole–pump–rising-main system of each pump type, solved ahead of the hourly loop.
+//!
+//! The system head at total flow Q is
+//!   H(Q) = lift₀ + s_past + (a₀ + B)·Q + C·Q² + h_f(Q) + ΣK·v²/2g
+//! with lift₀ the static lift from the static water level to the tank inlet, s_past the aquifer
+//! drawdown left by earlier hours (Theis superposition, varies hour by hour), a₀·Q the
+//! drawdown of the current hour's pumping (Theis, half an hour in), B·Q + C·Q² Jacob's well
+//! loss and h_f the rising-main friction (Colebrook–White or Hazen–Williams).
+//! Only s_past changes from hour to hour, so for each number of running units the operating
+//! point is tabulated on a grid of s_past once per scheme; the hourly loop interpolates.
+
+use crate::physics::{aquifer, pipes, pumps, water};
+use crate::scheme::{Borehole, Friction, PumpKind, RisingMain, Scheme};
+
+/// Points on the s_past grid. Between points the flow is interpolated linearly.
+const OFFSET_POINTS: usize = 17;
+/// Samples along each variable-speed power–flow table.
+const POWER_SAMPLES: usize = 33;
+
+/// The system curve of one borehole and the rising main, without s_past.
+#[derive(Debug, Clone)]
+pub struct SystemCurve {
+    /// Static lift from the static water level to the tank inlet, m.
+    pub lift0_m: f64,
+    /// Linear coefficient a₀ + B, s/m².
+    pub linear_s_per_m2: f64,
+    /// Quadratic well-loss coefficient C, s²/m⁵.
+    pub quad_s2_per_m5: f64,
+    pub main: Option<RisingMain>,
+    pub nu_m2_per_s: f64,
+}
+
+impl SystemCurve {
+    pub fn new(s: &Scheme, b: &Borehole, a0_s_per_m2: f64) -> SystemCurve {
+        SystemCurve {
+            lift0_m: s.tank.inlet_elevation_m - b.ground_elevation_m + b.static_depth_m,
+            linear_s_per_m2: a0_s_per_m2 + b.well_loss_b_s_per_m2,
+            quad_s2_per_m5: b.well_loss_c_s2_per_m5,
+            main: s.rising_main.clone(),
+            nu_m2_per_s: water::water_kinematic_viscosity_m2_per_s(s.info.water_temperature_c),
+        }
+    }
+
+    /// Rising-main friction and fittings loss at total flow q (m³/s), m.
+    pub fn main_loss_m(&self, q: f64) -> f64 {
+        let Some(m) = &self.main else {
+            return 0.0;
+        };
+        if q <= 0.0 {
+            return 0.0;
+        }
+        let method = match m.friction {
+            Friction::ColebrookWhite { roughness_m } => {
+                pipes::FrictionMethod::DarcyWeisbach { roughness_m }
+            }
+            Friction::HazenWilliams { c } => pipes::FrictionMethod::HazenWilliams { c },
+        };
+        let hf = pipes::pipe_friction_head_m(
+            q,
+            m.length_m,
+            m.internal_diameter_m,
+            method,
+            self.nu_m2_per_s,
+        )
+        .unwrap_or(f64::INFINITY);
+        let v = pipes::velocity_m_per_s(q, m.internal_diameter_m);
+        hf + pipes::minor_loss_m(m.fittings_k_total, v)
+    }
+
+    /// Drawdown in the pumped well from the current flow (aquifer a₀Q plus well loss), m.
+    pub fn well_drawdown_m(&self, q: f64) -> f64 {
+        self.linear_s_per_m2 * q + self.quad_s2_per_m5 * q * q
+    }
+
+    /// Total head against which the pumps work at total flow q with past drawdown s_past, m.
+    pub fn head_m(&self, q: f64, s_past_m: f64) -> f64 {
+        self.lift0_m + s_past_m + self.well_drawdown_m(q) + self.main_loss_m(q)
+    }
+}
+
+/// Interpolated result of a table lookup.
+#[derive(Debug, Clone, Copy, Default)]
+pub struct Point {
+    pub flow_m3_per_s: f64,
+    pub power_w: f64,
+    pub head_m: f64,
+    pub speed_ratio: f64,
+    pub beyond_table: bool,
+}
+
+/// Operating points of N units of one curve pump, on the grid of s_past.
+#[derive(Debug, Clone)]
+enum UnitsTable {
+    /// Variable speed (solar): a power–flow table per grid point (None: no delivery there).
+    Variable(Vec<Option<pumps::PowerFlowTable>>),
+    /// Fixed speed (generator, grid): the operating point at rated speed per grid point.
+    Fixed(Vec<Option<Point>>),
+}
+
+/// The tabulated system of one curve pump type on its borehole.
+#[derive(Debug, Clone)]
+pub struct PumpTables {
+    pub curve: pumps::PumpCurve,
+    pub system: SystemCurve,
+    /// s_past grid step, m.
+    step_m: f64,
+    /// Largest s_past tabulated, m (beyond it the dry-run cut-out stops the pumps anyway).
+    pub max_offset_m: f64,
+    /// Index n−1 holds the table for n units running.
+    by_units: Vec<UnitsTable>,
+    pub start_power_w: f64,
+}
+
+impl PumpTables {
+    /// Builds the tables for 1..=max_units units. `variable` is true for a variable-power drive.
+    pub fn build(
+        curve: pumps::PumpCurve,
+        system: SystemCurve,
+        max_offset_m: f64,
+        max_units: u32,
+        variable: bool,
+        min_speed: f64,
+        start_power_w: f64,
+    ) -> PumpTables {
+        let max_offset_m = max_offset_m.max(0.0);
+        let step_m = max_offset_m / (OFFSET_POINTS - 1) as f64;
+        let offsets: Vec<f64> = (0..OFFSET_POINTS).map(|k| k as f64 * step_m).collect();
+        let mut by_units = Vec::new();
+        for n in 1..=max_units.max(1) {
+            let t = if variable {
+                UnitsTable::Variable(
+                    offsets
+                        .iter()
+                        .map(|s| {
+                            pumps::PowerFlowTable::new(
+                                &curve,
+                                n,
+                                |q| system.head_m(q, *s),
+                                min_speed,
+                                1.0,
+                                POWER_SAMPLES,
+                            )
+                            .ok()
+                        })
+                        .collect(),
+                )
+            } else {
+                UnitsTable::Fixed(
+                    offsets
+                        .iter()
+                        .map(|s| {
+                            pumps::operating_point(&curve, 1.0, n, |q| system.head_m(q, *s))
+                                .ok()
+                                .map(|op| Point {
+                                    flow_m3_per_s: op.flow_m3_per_s,
+                                    power_w: op.power_total_w,
+                                    head_m: op.head_m,
+                                    speed_ratio: 1.0,
+                                    beyond_table: op.beyond_table,
+                                })
+                        })
+                        .collect(),
+                )
+            };
+            by_units.push(t);
+        }
+        PumpTables {
+            curve,
+            system,
+            step_m,
+            max_offset_m,
+            by_units,
+            start_power_w,
+        }
+    }
+
+    fn grid(&self, s_past_m: f64) -> (usize, f64) {
+        if self.step_m <= 0.0 {
+            return (0, 0.0);
+        }
+        let x = (s_past_m.max(0.0) / self.step_m).min((OFFSET_POINTS - 1) as f64);
+        let k = (x.floor() as usize).min(OFFSET_POINTS - 2);
+        (k, x - k as f64)
+    }
+
+    /// Operating point of `n` units sharing total power `power_w` (variable speed), or at
+    /// rated speed (fixed; `power_w` ignored), with past drawdown `s_past_m`. None: no delivery.
+    pub fn point(&self, n: u32, power_w: f64, s_past_m: f64) -> Option<Point> {
+        if n == 0 || n as usize > self.by_units.len() {
+            return None;
+        }
+        let (k, f) = self.grid(s_past_m);
+        let pick = |i: usize| -> Option<Point> {
+            match &self.by_units[n as usize - 1] {
+                UnitsTable::Variable(v) => {
+                    if power_w < self.start_power_w * n as f64 {
+                        return None;
+                    }
+                    v[i].as_ref()?.lookup(power_w).map(|p| Point {
+                        flow_m3_per_s: p.flow_m3_per_s,
+                        power_w: p.power_used_w,
+                        head_m: p.head_m,
+                        speed_ratio: p.speed_ratio,
+                        beyond_table: p.beyond_table,
+                    })
+                }
+                UnitsTable::Fixed(v) => v[i],
+            }
+        };
+        let a = pick(k);
+        if f <= 0.0 || self.step_m <= 0.0 {
+            return a;
+        }
+        let b = pick(k + 1);
+        match (a, b) {
+            (Some(a), Some(b)) => Some(Point {
+                flow_m3_per_s: a.flow_m3_per_s + f * (b.flow_m3_per_s - a.flow_m3_per_s),
+                power_w: a.power_w + f * (b.power_w - a.power_w),
+                head_m: a.head_m + f * (b.head_m - a.head_m),
+                speed_ratio: a.speed_ratio + f * (b.speed_ratio - a.speed_ratio),
+                beyond_table: a.beyond_table || b.beyond_table,
+            }),
+            // at the edge of delivery: fade the flow out linearly
+            (Some(a), None) => Some(Point {
+                flow_m3_per_s: a.flow_m3_per_s * (1.0 - f),
+                power_w: a.power_w * (1.0 - f),
+                ..a
+            }),
+            (None, Some(_)) | (None, None) => None,
+        }
+    }
+}
+
+/// Theis superposition kernel for hourly pumping: coefficient (s/m²) of the flow j hours ago
+/// in the drawdown at the pumped well's face, k_j = [W(u(j+½ h)) − W(u(j−½ h))]/(4πT), with
+/// k_0 = W(u(½ h))/(4πT); plus the tail factor for pumping older than the window at its mean
+/// rate from 30 days back, [W(u(30 d)) − W(u(window−½ h))]/(4πT).
+/// Theis (1935) via Kruseman & de Ridder (1994) eq. 3.5, superposition in time (their §12).
+#[derive(Debug, Clone)]
+pub struct TheisKernel {
+    pub k: Vec<f64>,
+    pub tail: f64,
+}
+
+/// Hours of pumping history superposed hour by hour.
+pub const KERNEL_HOURS: usize = 24;
+/// Days over which older pumping is averaged for the tail.
+pub const TAIL_DAYS: usize = 30;
+
+impl TheisKernel {
+    pub fn new(t_m2_per_s: f64, storativity: f64, r_m: f64) -> TheisKernel {
+        let w = |hours: f64| {
+            aquifer::well_function(aquifer::theis_u(
+                t_m2_per_s,
+                storativity,
+                r_m,
+                hours * 3600.0,
+            ))
+        };
+        let c = 1.0 / (4.0 * std::f64::consts::PI * t_m2_per_s);
+        let mut k = Vec::with_capacity(KERNEL_HOURS);
+        for j in 0..KERNEL_HOURS {
+            let jf = j as f64;
+            let v = if j == 0 {
+                w(0.5)
+            } else {
+                w(jf + 0.5) - w(jf - 0.5)
+            };
+            k.push(v * c);
+        }
+        let tail = (w(TAIL_DAYS as f64 * 24.0) - w(KERNEL_HOURS as f64 - 0.5)) * c;
+        TheisKernel { k, tail }
+    }
+}
+
+/// Curve points of a pump as the physics type.
+pub fn curve_of(kind: &PumpKind) -> Option<Result<pumps::PumpCurve, pumps::CurveError>> {
+    match kind {
+        PumpKind::Curve { points, .. } => {
+            let pts: Vec<pumps::CurvePoint> = points
+                .iter()
+                .map(|p| pumps::CurvePoint {
+                    flow_m3_per_s: p.flow_m3_per_s,
+                    head_m: p.head_m,
+                    power_w: p.power_w,
+                })
+                .collect();
+            Some(pumps::PumpCurve::new(&pts))
+        }
+        _ => None,
+    }
+}
