@@ -36,6 +36,42 @@ pub enum Command {
     /// Validate scheme files and print a short table per file
     #[command(after_help = "Example:\n  tapplan check samples/*.yaml")]
     Check(CheckArgs),
+    /// Simulate a design hour by hour over a year and the design horizon
+    #[command(
+        after_help = "Example:\n  tapplan run samples/kessa-ridge-solar.yaml\n  tapplan run samples/kessa-ridge-solar.yaml --tank-m3 80 --pumps SolarSub-9=2 --hourly hours.csv"
+    )]
+    Run(RunArgs),
+}
+
+/// Options that replace parts of the file's design.
+#[derive(Debug, Args, Clone)]
+pub struct DesignArgs {
+    /// Tank capacity to use instead of the file's (m³)
+    #[arg(long, value_name = "M3")]
+    pub tank_m3: Option<f64>,
+    /// Installed units of a pump type, NAME=N (repeat for several types)
+    #[arg(long, value_name = "NAME=N")]
+    pub pumps: Vec<String>,
+    /// PV array size to use instead of the file's (kWp)
+    #[arg(long, value_name = "KWP")]
+    pub array_kwp: Option<f64>,
+}
+
+#[derive(Debug, Args)]
+pub struct RunArgs {
+    /// Scheme file
+    pub file: PathBuf,
+    #[command(flatten)]
+    pub design: DesignArgs,
+    /// Write the hourly series of the base year to this CSV file (`-` for standard output)
+    #[arg(long, value_name = "FILE")]
+    pub hourly: Option<PathBuf>,
+    /// Write all results as JSON to this file (`-` for standard output)
+    #[arg(long, value_name = "FILE")]
+    pub json: Option<PathBuf>,
+    /// Print only the summary line
+    #[arg(long, short)]
+    pub quiet: bool,
 }
 
 #[derive(Debug, Args)]

@@ -42,7 +42,111 @@ fn run(cli: Cli) -> anyhow::Result<Outcome> {
     match cli.command {
         Command::New(a) => cmd_new(a),
         Command::Check(a) => cmd_check(a),
+        Command::Run(a) => cmd_run(a),
     }
+}
+
+/// Loads a scheme, printing its problems (exit 2) when it is not valid.
+fn load(path: &Path) -> Result<tapplan::scheme::Loaded, Outcome> {
+    match tapplan::scheme::load_file(path) {
+        Ok(l) => Ok(l),
+        Err(e) => {
+            eprint!("{e}");
+            Err(Outcome::BadInput)
+        }
+    }
+}
+
+/// Builds the engine model, reporting input problems found while preparing (exit 2).
+fn model(path: &Path, s: &tapplan::scheme::Scheme) -> Result<tapplan::simulate::Model, Outcome> {
+    tapplan::simulate::Model::new(s).map_err(|e| {
+        eprintln!("{}: {e}", path.display());
+        Outcome::BadInput
+    })
+}
+
+fn overrides(a: &cli::DesignArgs) -> Result<tapplan::simulate::DesignOverrides, Outcome> {
+    let mut pumps = Vec::new();
+    for p in &a.pumps {
+        match tapplan::simulate::parse_pump_override(p) {
+            Ok(x) => pumps.push(x),
+            Err(e) => {
+                eprintln!("error: --pumps {e}");
+                return Err(Outcome::BadInput);
+            }
+        }
+    }
+    Ok(tapplan::simulate::DesignOverrides {
+        tank_m3: a.tank_m3,
+        pumps,
+        array_kwp: a.array_kwp,
+    })
+}
+
+macro_rules! tryo {
+    ($e:expr) => {
+        match $e {
+            Ok(v) => v,
+            Err(o) => return Ok(o),
+        }
+    };
+}
+
+fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {
+    use tapplan::output::table;
+    let loaded = tryo!(load(&a.file));
+    let s = &loaded.scheme;
+    let o = tryo!(overrides(&a.design));
+    let design = match tapplan::simulate::resolve_design(s, &o) {
+        Ok(d) => d,
+        Err(e) => {
+            eprintln!("{}: {e}", a.file.display());
+            return Ok(Outcome::BadInput);
+        }
+    };
+    let m = tryo!(model(&a.file, s));
+    let r = tapplan::simulate::run_report(&m, &design);
+    let to_stdout =
+        |p: &Option<std::path::PathBuf>| p.as_ref().is_some_and(|p| p.as_os_str() == "-");
+    let quiet_tables = a.quiet || to_stdout(&a.hourly) || to_stdout(&a.json);
+    if !quiet_tables {
+        println!("{}", s.info.name);
+        println!(
+            "{}",
+            table::annual_table(&r.year, r.storage_days_of_average_demand)
+        );
+        println!("{}", table::monthly_table(&r.year));
+        if r.first_year.years_run > 1 {
+            println!("{}", table::ensemble_table(&r.first_year, &r.horizon_year));
+        }
+        println!("{}", table::horizon_table(&r));
+        println!("Operating rules of this run:");
+        for rule in &r.rules {
+            println!("  - {rule}");
+        }
+        for w in &r.warnings {
+            println!("  warning: {w}");
+        }
+    }
+    let inputs: [&Path; 1] = [&a.file];
+    if let Some(p) = &a.hourly {
+        let hourly = r.year.hourly.as_ref().expect("hourly kept");
+        let text = tapplan::output::csv::hourly_csv(r.year.year, hourly);
+        write_output(p, text.as_bytes(), &inputs)
+            .map_err(|e| anyhow::anyhow!("could not write the hourly CSV: {e}"))?;
+    }
+    if let Some(p) = &a.json {
+        let mut text = serde_json::to_string_pretty(&r)?;
+        text.push('\n');
+        write_output(p, text.as_bytes(), &inputs)
+            .map_err(|e| anyhow::anyhow!("could not write the JSON: {e}"))?;
+    }
+    if !(to_stdout(&a.hourly) || to_stdout(&a.json)) {
+        println!("{}", table::run_summary_line(&r));
+    } else {
+        eprintln!("{}", table::run_summary_line(&r));
+    }
+    Ok(Outcome::Ok)
 }
 
 fn cmd_new(a: cli::NewArgs) -> anyhow::Result<Outcome> {

@@ -261,7 +261,11 @@ fn same_bytes_across_processes() {
             .env("PDF_LAYER_CHILD_OUT", &p)
             .output()
             .unwrap();
-        assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
         outs.push(std::fs::read(&p).unwrap());
     }
     assert!(!outs[0].is_empty());

@@ -72,3 +72,220 @@ fn search_text(r: &TankSearch) -> String {
         TankSearch::Sizes(v) => format!("{} standard sizes", v.len()),
     }
 }
+
+use crate::simulate::{Ensemble, RunReport, YearResult};
+use crate::weather::MONTH_NAMES;
+
+fn pct(f: f64) -> String {
+    format!("{:.1}", f * 100.0)
+}
+
+/// The one-line answer: design, shortfall hours and % met.
+pub fn run_summary_line(r: &RunReport) -> String {
+    format!(
+        "{}: shortfall {:.0} h/year and {} % of demand met in {} ({} over {} weather year{}); {} h and {} % in {}; target {}",
+        r.design_text,
+        r.first_year.judged_shortfall_hours,
+        pct(r.first_year.judged_demand_met_fraction),
+        r.first_year.year,
+        judged_name(r.first_year.judged_on, r.first_year.years_run),
+        r.first_year.years_run,
+        if r.first_year.years_run == 1 { "" } else { "s" },
+        r.horizon_year.judged_shortfall_hours,
+        pct(r.horizon_year.judged_demand_met_fraction),
+        r.horizon_year.year,
+        if r.target_met_in_horizon_year {
+            "met at the horizon".to_string()
+        } else {
+            match r.first_failing_year {
+                Some(y) => format!("NOT met from {y}"),
+                None => "NOT met".to_string(),
+            }
+        }
+    )
+}
+
+fn judged_name(j: crate::scheme::JudgedOn, n: usize) -> &'static str {
+    if n <= 1 {
+        return "single year";
+    }
+    match j {
+        crate::scheme::JudgedOn::Median => "median",
+        crate::scheme::JudgedOn::P90 => "1 year in 10",
+    }
+}
+
+/// Annual figures of one year.
+pub fn annual_table(y: &YearResult, storage_days: f64) -> Table {
+    let a = &y.annual;
+    let mut t = new_table(&["annual figure", "value"]);
+    let rows: Vec<(&str, String)> = vec![
+        ("year (weather)", format!("{} ({})", y.year, y.weather)),
+        ("population", format!("{:.0}", y.population)),
+        ("demand (m³)", format!("{:.0}", a.demand_m3)),
+        ("delivered (m³)", format!("{:.0}", a.delivered_m3)),
+        ("unmet (m³)", format!("{:.1}", a.unmet_m3)),
+        ("demand met (%)", pct(y.demand_met_fraction)),
+        ("shortfall hours (h)", a.shortfall_hours.to_string()),
+        (
+            "longest dry spell (h)",
+            y.longest_dry_spell_hours.to_string(),
+        ),
+        ("pumped (m³)", format!("{:.0}", a.pumped_m3)),
+        ("overflow (m³)", format!("{:.1}", a.overflow_m3)),
+        (
+            "lowest tank level (% of usable)",
+            pct(a.lowest_level_fraction),
+        ),
+        ("pump run hours (h)", format!("{:.0}", a.pump_run_hours)),
+        ("pump energy (kWh)", format!("{:.0}", a.energy_kwh)),
+        (
+            "specific energy (kWh/m³)",
+            y.specific_energy_kwh_per_m3
+                .map_or("-".into(), |v| format!("{v:.3}")),
+        ),
+        ("generator fuel (L)", format!("{:.0}", a.generator_fuel_l)),
+        (
+            "delivered domestic water (L/person/day)",
+            format!("{:.1}", y.delivered_m3_per_person_day * 1000.0),
+        ),
+        (
+            "least drawdown margin (m)",
+            y.drawdown_margin_m
+                .map_or("-".into(), |v| format!("{v:.1}")),
+        ),
+        (
+            "deepest dynamic water level (m below ground)",
+            y.deepest_dynamic_level_m
+                .map_or("-".into(), |v| format!("{v:.1}")),
+        ),
+        ("dry-run stops (h)", y.dry_run_stop_hours.to_string()),
+        (
+            "hours capped at safe yield (h)",
+            y.yield_capped_hours.to_string(),
+        ),
+        (
+            "hours beyond the pump curve (h)",
+            y.beyond_curve_hours.to_string(),
+        ),
+        (
+            "storage (days of average demand)",
+            format!("{storage_days:.2}"),
+        ),
+    ];
+    for (k, v) in rows {
+        t.add_row(vec![k.to_string(), v]);
+    }
+    t
+}
+
+/// Monthly figures of one year.
+pub fn monthly_table(y: &YearResult) -> Table {
+    let mut t = new_table(&[
+        "month",
+        "demand (m³)",
+        "delivered (m³)",
+        "unmet (m³)",
+        "shortfall (h)",
+        "pumped (m³)",
+        "overflow (m³)",
+        "run (h)",
+        "energy (kWh)",
+        "lowest level (%)",
+    ]);
+    for (m, x) in y.months.iter().enumerate() {
+        t.add_row(vec![
+            MONTH_NAMES[m][..3].to_string(),
+            format!("{:.0}", x.demand_m3),
+            format!("{:.0}", x.delivered_m3),
+            format!("{:.1}", x.unmet_m3),
+            x.shortfall_hours.to_string(),
+            format!("{:.0}", x.pumped_m3),
+            format!("{:.1}", x.overflow_m3),
+            format!("{:.0}", x.pump_run_hours),
+            format!("{:.0}", x.energy_kwh),
+            pct(x.lowest_level_fraction),
+        ]);
+    }
+    t
+}
+
+/// Reliability over the weather years.
+pub fn ensemble_table(first: &Ensemble, last: &Ensemble) -> Table {
+    let mut t = new_table(&[
+        "over weather years",
+        &format!("{} ({} years)", first.year, first.years_run),
+        &format!("{} ({} years)", last.year, last.years_run),
+    ]);
+    let rows = [
+        (
+            "median shortfall (h)",
+            first.median_shortfall_hours,
+            last.median_shortfall_hours,
+            false,
+        ),
+        (
+            "1-in-10 shortfall, 90th pct (h)",
+            first.p90_shortfall_hours,
+            last.p90_shortfall_hours,
+            false,
+        ),
+        (
+            "worst-year shortfall (h)",
+            first.worst_shortfall_hours,
+            last.worst_shortfall_hours,
+            false,
+        ),
+        (
+            "median demand met (%)",
+            first.median_demand_met_fraction,
+            last.median_demand_met_fraction,
+            true,
+        ),
+        (
+            "1-in-10 demand met (%)",
+            first.p10_demand_met_fraction,
+            last.p10_demand_met_fraction,
+            true,
+        ),
+        (
+            "worst-year demand met (%)",
+            first.worst_demand_met_fraction,
+            last.worst_demand_met_fraction,
+            true,
+        ),
+    ];
+    for (k, a, b, is_pct) in rows {
+        let f = |v: f64| if is_pct { pct(v) } else { format!("{v:.0}") };
+        t.add_row(vec![k.to_string(), f(a), f(b)]);
+    }
+    t.add_row(vec![
+        "longest dry spell (h)".to_string(),
+        first.longest_dry_spell_hours.to_string(),
+        last.longest_dry_spell_hours.to_string(),
+    ]);
+    t
+}
+
+/// Shortfall and % met year by year to the horizon.
+pub fn horizon_table(r: &RunReport) -> Table {
+    let mut t = new_table(&[
+        "year",
+        "population",
+        "demand (m³/day)",
+        "shortfall (h)",
+        "demand met (%)",
+        "target",
+    ]);
+    for h in &r.horizon {
+        t.add_row(vec![
+            h.year.to_string(),
+            format!("{:.0}", h.population),
+            format!("{:.1}", h.demand_m3_per_day),
+            format!("{:.0}", h.shortfall_hours),
+            pct(h.demand_met_fraction),
+            if h.meets_target { "met" } else { "NOT met" }.to_string(),
+        ]);
+    }
+    t
+}

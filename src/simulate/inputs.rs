@@ -159,7 +159,12 @@ fn solar_year_from_daily(
     for (d, h_day) in daily_j_per_m2.iter().enumerate().take(DAYS_IN_YEAR) {
         let m = month_of_day(d);
         let g = solar::hourly_plane_irradiance_w_per_m2(
-            pv.lat_rad, doy(d), *h_day, pv.tilt_rad, pv.az_rad, pv.albedo,
+            pv.lat_rad,
+            doy(d),
+            *h_day,
+            pv.tilt_rad,
+            pv.az_rad,
+            pv.albedo,
         );
         for (h, gh) in g.iter().enumerate() {
             w[d * 24 + h] = pv.dc(*gh, air_c[m]);

@@ -406,7 +406,12 @@ impl Model {
         demand_factor: f64,
     ) -> YearResult {
         let dd = daily_demand(&self.scheme, year_offset);
-        let mut st = State::new(self, design, dd.supplied_m3_per_day * demand_factor, weather);
+        let mut st = State::new(
+            self,
+            design,
+            dd.supplied_m3_per_day * demand_factor,
+            weather,
+        );
         // Warm-up: the last 31 days of the year, from the file's initial level.
         let warm_start = HOURS_IN_YEAR - 31 * 24;
         for h in warm_start..HOURS_IN_YEAR {
@@ -586,7 +591,10 @@ pub fn operating_rules(s: &Scheme) -> Vec<String> {
             WeatherMode::File { path } => r.push(format!("Weather: hourly global horizontal irradiance and air temperature from `{}`; every year in the file is run.", path.file_name().map(|f| f.to_string_lossy().into_owned()).unwrap_or_default())),
         }
     }
-    if s.pumps.iter().any(|p| matches!(p.drive, DriveKind::Generator | DriveKind::Grid)) {
+    if s.pumps
+        .iter()
+        .any(|p| matches!(p.drive, DriveKind::Generator | DriveKind::Grid))
+    {
         r.push("Generator and grid pumps run at rated speed within their allowed hours; as many units run as the drive's power allows (each drawing its curve power at the operating point); the generator runs only while pumps run, and its fuel follows the linear fuel curve a·P_rated + b·P_out.".to_string());
     }
     if s.pumps.iter().any(|p| p.drive == DriveKind::Hand) {
@@ -685,7 +693,11 @@ impl<'a> State<'a> {
         let demand = self.daily_demand_m3 * m.shape[h];
         let nb = s.boreholes.len();
         // remaining safe yield this hour, m³/s
-        let mut cap: Vec<f64> = s.boreholes.iter().map(|b| b.safe_yield_m3_per_s()).collect();
+        let mut cap: Vec<f64> = s
+            .boreholes
+            .iter()
+            .map(|b| b.safe_yield_m3_per_s())
+            .collect();
         let mut bh_hand = vec![0.0; nb];
         let mut bh_motor = vec![0.0; nb];
 
@@ -716,7 +728,8 @@ impl<'a> State<'a> {
         let solar_w = if m.solar_years.is_empty() {
             0.0
         } else {
-            self.design.array_w * m.solar_years[self.weather.min(m.solar_years.len() - 1)].w_per_wp[h]
+            self.design.array_w
+                * m.solar_years[self.weather.min(m.solar_years.len() - 1)].w_per_wp[h]
         };
         let mut pool_solar = solar_w;
         let mut pool_gen = match &s.generator {
@@ -758,19 +771,19 @@ impl<'a> State<'a> {
                 let mut best: Option<(u32, hydraulics::Point)> = None;
                 if variable {
                     for n in 1..=n_inst {
-                        if let Some(pt) = t.point(n, *pool, s_past) {
-                            if best.is_none_or(|(_, b)| pt.flow_m3_per_s > b.flow_m3_per_s) {
-                                best = Some((n, pt));
-                            }
+                        let pt = t.point(n, *pool, s_past);
+                        if let Some(pt) = pt.filter(|pt| {
+                            best.is_none_or(|(_, b)| pt.flow_m3_per_s > b.flow_m3_per_s)
+                        }) {
+                            best = Some((n, pt));
                         }
                     }
                 } else {
                     for n in (1..=n_inst).rev() {
-                        if let Some(pt) = t.point(n, 0.0, s_past) {
-                            if pt.power_w <= *pool + 1e-9 {
-                                best = Some((n, pt));
-                                break;
-                            }
+                        let pt = t.point(n, 0.0, s_past);
+                        if let Some(pt) = pt.filter(|pt| pt.power_w <= *pool + 1e-9) {
+                            best = Some((n, pt));
+                            break;
                         }
                     }
                 }
@@ -801,7 +814,8 @@ impl<'a> State<'a> {
                     }
                 }
                 // dry-run protection
-                let depth = bore.static_depth_m + s_past + t.system.well_drawdown_m(pt.flow_m3_per_s);
+                let depth =
+                    bore.static_depth_m + s_past + t.system.well_drawdown_m(pt.flow_m3_per_s);
                 let limit = bore.intake_depth_m - bore.submergence_margin_m;
                 if depth > limit {
                     self.dry_run_hours += 1;
@@ -918,7 +932,11 @@ impl<'a> State<'a> {
         };
 
         // totals
-        let level_frac = if self.usable_m3 > 0.0 { v / self.usable_m3 } else { 0.0 };
+        let level_frac = if self.usable_m3 > 0.0 {
+            v / self.usable_m3
+        } else {
+            0.0
+        };
         let short_hour = shortfall > 1e-6;
         for t in [&mut self.annual, &mut self.months[month]] {
             t.demand_m3 += demand;
@@ -951,9 +969,11 @@ impl<'a> State<'a> {
             hr.overflow_m3.push(overflow);
             hr.tank_level_m3.push(v);
             hr.dynamic_water_level_m.push(depth_rec.unwrap_or(f64::NAN));
-            hr.pump_head_m.push(if motor_used > 0.0 { head } else { 0.0 });
+            hr.pump_head_m
+                .push(if motor_used > 0.0 { head } else { 0.0 });
             hr.pump_power_w.push((p_solar + p_gen + p_grid) * hours);
-            hr.pump_speed_ratio.push(if motor_used > 0.0 { speed } else { 0.0 });
+            hr.pump_speed_ratio
+                .push(if motor_used > 0.0 { speed } else { 0.0 });
             hr.drive_power_available_w.push(available);
         }
     }
@@ -972,7 +992,11 @@ pub struct DesignOverrides {
 pub fn resolve_design(s: &Scheme, o: &DesignOverrides) -> Result<Design, String> {
     let tank = match o.tank_m3 {
         Some(t) if t.is_finite() && t > 0.0 && t <= 20_000.0 => t,
-        Some(t) => return Err(format!("--tank-m3 {t}: give a tank capacity above 0 and up to 20000 m³")),
+        Some(t) => {
+            return Err(format!(
+                "--tank-m3 {t}: give a tank capacity above 0 and up to 20000 m³"
+            ));
+        }
         None => s
             .tank
             .capacity_m3
@@ -1004,19 +1028,22 @@ pub fn resolve_design(s: &Scheme, o: &DesignOverrides) -> Result<Design, String>
             )
         })?);
     }
-    let array_w = if s.uses_solar() {
-        match o.array_kwp {
-            Some(k) if k.is_finite() && k > 0.0 && k <= 1000.0 => k * 1000.0,
-            Some(k) => return Err(format!("--array-kwp {k}: give an array size above 0 and up to 1000 kWp")),
-            None => s
-                .solar
-                .as_ref()
-                .and_then(|x| x.array_peak_w)
-                .ok_or("the file gives no drives.solar.array_kwp; give one or use --array-kwp")?,
-        }
-    } else {
-        0.0
-    };
+    let array_w =
+        if s.uses_solar() {
+            match o.array_kwp {
+                Some(k) if k.is_finite() && k > 0.0 && k <= 1000.0 => k * 1000.0,
+                Some(k) => {
+                    return Err(format!(
+                        "--array-kwp {k}: give an array size above 0 and up to 1000 kWp"
+                    ));
+                }
+                None => s.solar.as_ref().and_then(|x| x.array_peak_w).ok_or(
+                    "the file gives no drives.solar.array_kwp; give one or use --array-kwp",
+                )?,
+            }
+        } else {
+            0.0
+        };
     Ok(Design {
         tank_m3: tank,
         units: out,
@@ -1026,12 +1053,72 @@ pub fn resolve_design(s: &Scheme, o: &DesignOverrides) -> Result<Design, String>
 
 /// Parses `NAME=N` for `--pumps`.
 pub fn parse_pump_override(arg: &str) -> Result<(String, u32), String> {
-    let (name, n) = arg
-        .rsplit_once('=')
-        .ok_or_else(|| format!("`{arg}`: write the pump type and count as NAME=N, e.g. SolarSub-9=2"))?;
+    let (name, n) = arg.rsplit_once('=').ok_or_else(|| {
+        format!("`{arg}`: write the pump type and count as NAME=N, e.g. SolarSub-9=2")
+    })?;
     let n: u32 = n
         .trim()
         .parse()
         .map_err(|_| format!("`{arg}`: the count after `=` must be a whole number ≥ 0"))?;
     Ok((name.trim().to_string(), n))
+}
+
+/// Everything `tapplan run` reports for one design.
+#[derive(Debug, Clone, Serialize)]
+pub struct RunReport {
+    pub scheme: String,
+    pub design: Design,
+    pub design_text: String,
+    pub rules: Vec<String>,
+    /// Base-year reliability over the weather years.
+    pub first_year: Ensemble,
+    /// Horizon-year reliability over the weather years.
+    pub horizon_year: Ensemble,
+    /// The base-year weather year shown in detail (the judged one), with monthly figures.
+    pub year: YearResult,
+    pub horizon: Vec<HorizonRow>,
+    /// First year the target fails, if any.
+    pub first_failing_year: Option<i32>,
+    pub storage_days_of_average_demand: f64,
+    pub target_met_in_horizon_year: bool,
+    pub warnings: Vec<String>,
+}
+
+/// Runs a design over the base year (with hourly series), the weather ensemble and horizon.
+pub fn run_report(m: &Model, design: &Design) -> RunReport {
+    let s = &m.scheme;
+    let mut first = m.run_ensemble(design, 0);
+    let last = m.run_ensemble(design, s.info.horizon_years);
+    let year = m.run_year(design, 0, first.representative, true);
+    let horizon = m.horizon(design);
+    let first_failing_year = horizon.iter().find(|r| !r.meets_target).map(|r| r.year);
+    let dd = daily_demand(s, 0);
+    for y in first.years.iter_mut() {
+        y.hourly = None;
+    }
+    RunReport {
+        scheme: s.info.name.clone(),
+        design_text: design.describe(s),
+        design: design.clone(),
+        rules: m.rules.clone(),
+        target_met_in_horizon_year: meets_target(s, &last),
+        first_year: first,
+        horizon_year: last,
+        year,
+        horizon,
+        first_failing_year,
+        storage_days_of_average_demand: storage_days(s, design.tank_m3, &dd),
+        warnings: s.warnings.clone(),
+    }
+}
+
+/// Usable storage in days of average (supplied) demand.
+pub fn storage_days(s: &Scheme, tank_m3: f64, dd: &DailyDemand) -> f64 {
+    let mean_factor = s.demand.monthly_factors.iter().sum::<f64>() / 12.0;
+    let per_day = dd.supplied_m3_per_day * mean_factor;
+    if per_day > 0.0 {
+        tank_m3 * s.tank.usable_fraction / per_day
+    } else {
+        f64::INFINITY
+    }
 }
