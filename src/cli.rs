@@ -41,6 +41,20 @@ pub enum Command {
         after_help = "Example:\n  tapplan run samples/kessa-ridge-solar.yaml\n  tapplan run samples/kessa-ridge-solar.yaml --tank-m3 80 --pumps SolarSub-9=2 --hourly hours.csv"
     )]
     Run(RunArgs),
+    /// Search the least-cost tank, pump count and array that meet the target
+    #[command(
+        after_help = "Example:\n  tapplan size samples/kessa-ridge-solar.yaml\n  tapplan size samples/kessa-ridge-solar.yaml --json plan.json"
+    )]
+    Size(SizeArgs),
+}
+
+#[derive(Debug, Args)]
+pub struct SizeArgs {
+    /// Scheme file
+    pub file: PathBuf,
+    /// Write the whole plan as JSON to this file (`-` for standard output)
+    #[arg(long, value_name = "FILE")]
+    pub json: Option<PathBuf>,
 }
 
 /// Options that replace parts of the file's design.

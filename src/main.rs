@@ -11,6 +11,16 @@ use clap::Parser;
 use cli::{Cli, Command};
 use tapplan::output::files::write_output;
 
+/// Returns the outcome from a command when a step has already reported its failure.
+macro_rules! tryo {
+    ($e:expr) => {
+        match $e {
+            Ok(v) => v,
+            Err(o) => return Ok(o),
+        }
+    };
+}
+
 /// How a command ended.
 #[allow(dead_code)] // `Failed` is used once checks and targets land
 enum Outcome {
@@ -43,7 +53,103 @@ fn run(cli: Cli) -> anyhow::Result<Outcome> {
         Command::New(a) => cmd_new(a),
         Command::Check(a) => cmd_check(a),
         Command::Run(a) => cmd_run(a),
+        Command::Size(a) => cmd_size(a),
     }
+}
+
+/// Prints a note on standard error if the work takes longer than about a second.
+struct Progress {
+    done: std::sync::Arc<std::sync::atomic::AtomicBool>,
+}
+
+impl Progress {
+    fn start(what: String) -> Progress {
+        use std::io::IsTerminal;
+        let done = std::sync::Arc::new(std::sync::atomic::AtomicBool::new(false));
+        if std::io::stderr().is_terminal() {
+            let d = done.clone();
+            std::thread::spawn(move || {
+                std::thread::sleep(std::time::Duration::from_millis(1000));
+                if !d.load(std::sync::atomic::Ordering::Relaxed) {
+                    eprintln!("{what} …");
+                }
+            });
+        }
+        Progress { done }
+    }
+}
+
+impl Drop for Progress {
+    fn drop(&mut self) {
+        self.done.store(true, std::sync::atomic::Ordering::Relaxed);
+    }
+}
+
+fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
+    use tapplan::output::table;
+    let loaded = tryo!(load(&a.file));
+    let s = &loaded.scheme;
+    let m = tryo!(model(&a.file, s));
+    let sets = tapplan::sizing::pump_sets(s).map(|v| v.len()).unwrap_or(0);
+    let n_designs = sets
+        * tapplan::sizing::array_candidates(s).len()
+        * tapplan::sizing::tank_candidates(s).len();
+    let plan = {
+        let _p = Progress::start(format!(
+            "sizing {}: searching {n_designs} designs in the ranges over {} weather year(s)",
+            s.info.name,
+            m.weather_years()
+        ));
+        match tapplan::sizing::size_with_model(&m) {
+            Ok(p) => p,
+            Err(e) => {
+                eprintln!("{}: {e}", a.file.display());
+                return Ok(Outcome::BadInput);
+            }
+        }
+    };
+    let cur = &s.info.currency;
+    let json_stdout = a.json.as_ref().is_some_and(|p| p.as_os_str() == "-");
+    if !json_stdout {
+        println!("{}", s.info.name);
+        print!("{}", table::plan_summary(&plan, cur));
+        if !plan.alternatives.is_empty() {
+            println!("{}", table::alternatives_table(&plan, cur));
+        }
+        if !plan.front.is_empty() {
+            println!("{}", table::front_table(&plan, cur));
+        }
+        if !plan.staging.is_empty() {
+            println!("{}", table::staging_table(&plan, cur));
+        }
+        if !plan.sensitivity.is_empty() {
+            println!("{}", table::sensitivity_table(&plan, cur));
+        }
+        println!(
+            "Search: {} pump sets × {} array sizes × {} tank sizes = {} designs in the ranges; {} ensemble checks, {} year-simulations.",
+            plan.stats.pump_sets,
+            plan.stats.array_sizes,
+            plan.stats.tank_sizes,
+            plan.stats.designs_in_ranges,
+            plan.stats.designs_evaluated,
+            plan.stats.year_simulations
+        );
+        for n in &plan.notes {
+            println!("note: {n}");
+        }
+    }
+    if let Some(p) = &a.json {
+        let mut text = serde_json::to_string_pretty(&plan)?;
+        text.push('\n');
+        let inputs: [&Path; 1] = [&a.file];
+        write_output(p, text.as_bytes(), &inputs)
+            .map_err(|e| anyhow::anyhow!("could not write the JSON: {e}"))?;
+    }
+    Ok(if plan.chosen.is_some() {
+        Outcome::Ok
+    } else {
+        Outcome::Failed
+    })
 }
 
 /// Loads a scheme, printing its problems (exit 2) when it is not valid.
@@ -81,15 +187,6 @@ fn overrides(a: &cli::DesignArgs) -> Result<tapplan::simulate::DesignOverrides, 
         pumps,
         array_kwp: a.array_kwp,
     })
-}
-
-macro_rules! tryo {
-    ($e:expr) => {
-        match $e {
-            Ok(v) => v,
-            Err(o) => return Ok(o),
-        }
-    };
 }
 
 fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {

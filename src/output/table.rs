@@ -289,3 +289,167 @@ pub fn horizon_table(r: &RunReport) -> Table {
     }
     t
 }
+
+use crate::sizing::Plan;
+
+fn money(v: f64, cur: &str) -> String {
+    format!("{:.0} {cur}", v)
+}
+
+/// The chosen design (or the plain statement that none meets the target).
+pub fn plan_summary(p: &Plan, cur: &str) -> String {
+    let mut out = String::new();
+    match &p.chosen {
+        Some(c) => {
+            out.push_str(&format!("Chosen design: {}\n", c.design_text));
+            out.push_str(&format!(
+                "  horizon-year shortfall {:.0} h/year, {:.1} % of demand met ({}); target: {}\n",
+                c.judged_shortfall_hours,
+                c.judged_demand_met_fraction * 100.0,
+                if p.weather_years > 1 {
+                    format!(
+                        "{} of {} weather years",
+                        match p.judged_on {
+                            crate::scheme::JudgedOn::Median => "median",
+                            crate::scheme::JudgedOn::P90 => "1-in-10 year",
+                        },
+                        p.weather_years
+                    )
+                } else {
+                    "weather-independent".to_string()
+                },
+                p.target_text
+            ));
+            out.push_str(&format!(
+                "  first-year shortfall {:.0} h/year, {:.1} % met\n",
+                p.report.first_year.judged_shortfall_hours,
+                p.report.first_year.judged_demand_met_fraction * 100.0
+            ));
+            out.push_str(&format!(
+                "  life-cycle cost {} (NPV), {} a year annualised{}\n",
+                money(c.cost.npv, cur),
+                money(c.cost.annualised, cur),
+                c.cost
+                    .levelised_per_m3
+                    .map_or(String::new(), |v| format!(", {v:.2} {cur}/m³ delivered"))
+            ));
+            if let Some(t) = p.next_smaller_tank_m3 {
+                out.push_str(&format!(
+                    "  the next smaller tank ({} m³) with the same pumps and array does not meet the target\n",
+                    crate::simulate::fmt_g(t)
+                ));
+            }
+        }
+        None => {
+            out.push_str("NO DESIGN IN THE RANGES MEETS THE TARGET.\n");
+            if let Some(u) = &p.unreachable {
+                out.push_str(&format!(
+                    "  best reachable: {}: {:.0} shortfall h/year, {:.1} % of demand met in the horizon year\n  limited by {}\n",
+                    u.best_design,
+                    u.best_shortfall_hours,
+                    u.best_demand_met_fraction * 100.0,
+                    u.limited_by
+                ));
+            }
+        }
+    }
+    if let Some(md) = &p.mean_days {
+        out.push_str(&format!("  {}\n", md.explanation));
+    }
+    out
+}
+
+/// Cheapest design per pump count.
+pub fn alternatives_table(p: &Plan, cur: &str) -> Table {
+    let mut t = new_table(&[
+        "alternative",
+        "shortfall (h/year)",
+        "demand met (%)",
+        "meets target",
+        "first fails",
+        &format!("NPV ({cur})"),
+        &format!("capital ({cur})"),
+    ]);
+    for a in &p.alternatives {
+        t.add_row(vec![
+            a.design_text.clone(),
+            format!("{:.0}", a.judged_shortfall_hours),
+            pct(a.judged_demand_met_fraction),
+            if a.meets_target { "yes" } else { "no" }.to_string(),
+            a.first_failing_year.map_or("-".into(), |y| y.to_string()),
+            format!("{:.0}", a.cost.npv),
+            format!("{:.0}", a.cost.capital),
+        ]);
+    }
+    t
+}
+
+/// Cost–reliability front.
+pub fn front_table(p: &Plan, cur: &str) -> Table {
+    let mut t = new_table(&[
+        "cost–reliability front",
+        "shortfall (h/year)",
+        "demand met (%)",
+        &format!("NPV ({cur})"),
+    ]);
+    for f in &p.front {
+        t.add_row(vec![
+            f.design_text.clone(),
+            format!("{:.0}", f.judged_shortfall_hours),
+            pct(f.judged_demand_met_fraction),
+            format!("{:.0}", f.npv),
+        ]);
+    }
+    t
+}
+
+/// Horizon staging.
+pub fn staging_table(p: &Plan, cur: &str) -> Table {
+    let mut t = new_table(&[
+        "start with",
+        "first fails",
+        "then add",
+        &format!("PW saved by waiting ({cur})"),
+    ]);
+    for s in &p.staging {
+        t.add_row(vec![
+            s.start_with.clone(),
+            s.fails_from_year
+                .map_or("does not fail".into(), |y| y.to_string()),
+            s.then_add.clone(),
+            format!("{:.0}", s.capital_saving_pw),
+        ]);
+    }
+    t
+}
+
+/// Sensitivity of the chosen design.
+pub fn sensitivity_table(p: &Plan, cur: &str) -> Table {
+    let mut t = new_table(&[
+        "case (horizon year)",
+        "shortfall (h/year)",
+        "demand met (%)",
+        "meets target",
+        &format!("NPV ({cur})"),
+    ]);
+    for r in &p.sensitivity {
+        if r.applicable {
+            t.add_row(vec![
+                r.case.clone(),
+                format!("{:.0}", r.judged_shortfall_hours),
+                pct(r.judged_demand_met_fraction),
+                if r.meets_target { "yes" } else { "no" }.to_string(),
+                format!("{:.0}", r.npv),
+            ]);
+        } else {
+            t.add_row(vec![
+                r.case.clone(),
+                "not applicable".into(),
+                "-".into(),
+                "-".into(),
+                "-".into(),
+            ]);
+        }
+    }
+    t
+}

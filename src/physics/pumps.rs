@@ -1137,6 +1137,24 @@ impl PowerFlowTable {
         })
     }
 
+    /// Total input power in W at which the units deliver total flow q (m³/s): the inverse of
+    /// [`Self::flow_for_power`], by linear interpolation between the tabulated samples (flow
+    /// rises with power along the table). `None` outside the table's flow range.
+    pub fn power_for_flow(&self, q_m3_per_s: f64) -> Option<f64> {
+        let last = self.flow.len() - 1;
+        if !(q_m3_per_s >= self.flow[0] && q_m3_per_s <= self.flow[last]) {
+            return None;
+        }
+        let k = interval_index(self.flow.len(), q_m3_per_s, |i| self.flow[i]).min(last - 1);
+        let width = self.flow[k + 1] - self.flow[k];
+        let f = if width > 0.0 {
+            (q_m3_per_s - self.flow[k]) / width
+        } else {
+            0.0
+        };
+        Some(self.power_w[k] + f * (self.power_w[k + 1] - self.power_w[k]))
+    }
+
     /// Total flow in m³/s for total input power P in W: 0 below the start power, the
     /// maximum-speed flow above the maximum power. Same method as [`Self::lookup`].
     pub fn flow_for_power(&self, power_w: f64) -> f64 {

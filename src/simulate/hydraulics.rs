@@ -183,6 +183,23 @@ impl PumpTables {
         (k, x - k as f64)
     }
 
+    /// Total input power (W) at which `n` variable-speed units deliver total flow q with past
+    /// drawdown s_past (the inverse of `point`), or None where the tables do not reach q.
+    pub fn power_for_flow(&self, n: u32, q: f64, s_past_m: f64) -> Option<f64> {
+        let UnitsTable::Variable(v) = self.by_units.get(n as usize - 1)? else {
+            return None;
+        };
+        let (k, f) = self.grid(s_past_m);
+        let a = v[k].as_ref()?.power_for_flow(q)?;
+        if f <= 0.0 {
+            return Some(a);
+        }
+        match v[k + 1].as_ref().and_then(|t| t.power_for_flow(q)) {
+            Some(b) => Some(a + f * (b - a)),
+            None => Some(a),
+        }
+    }
+
     /// Operating point of `n` units sharing total power `power_w` (variable speed), or at
     /// rated speed (fixed; `power_w` ignored), with past drawdown `s_past_m`. None: no delivery.
     pub fn point(&self, n: u32, power_w: f64, s_past_m: f64) -> Option<Point> {

@@ -1,1 +1,941 @@
-//! (to be written)
+//! The least-cost search: tank size, units of each pump type and array size that meet the
+//! target in the horizon year at the lowest life-cycle cost; then the ranked alternatives,
+//! the cost–reliability front, the horizon staging and the sensitivity table.
+//!
+//! `simulate` is used as a black box. Structure used instead of brute force:
+//! * Monotonicity (assumed, and tested on the samples): for a fixed pump set and array,
+//!   shortfall never increases as the tank grows, so the smallest adequate tank is found by
+//!   bisection over the candidate sizes; and a larger array never needs a larger tank, so the
+//!   bisection for the next array size starts from the previous answer.
+//! * A cost lower bound that needs no simulation (capital, replacements, salvage) prunes pump
+//!   sets and arrays that cannot beat the best design found so far.
+//! * A weather ensemble is judged by counting years that miss the target; a year stops as soon
+//!   as it has missed it, and an ensemble as soon as too many years have. During the bisection
+//!   only the hardest years (ranked once on the largest design) are run; the chosen design and
+//!   the next smaller tank are then confirmed on every year.
+
+pub mod cost;
+
+use serde::Serialize;
+
+use crate::error::Error;
+use crate::scheme::{DriveKind, JudgedOn, Scheme, TankSearch, WeatherMode};
+use crate::simulate::{
+    self, Abort, Design, Ensemble, Model, RunReport, Scenario, YearResult, daily_demand,
+    meets_target, year_meets_target, years_allowed_to_fail,
+};
+use cost::{CostBreakdown, Operation};
+
+/// Judge every bisection step on the whole ensemble (exact) rather than on screening years.
+/// Screening was measured to mislead the search on the solar samples (the weather years that
+/// are hardest for one pump set are not those for another), so the search is exact.
+const EXACT_SEARCH: bool = true;
+
+/// Most designs a search may consider (pump sets × array sizes × tank sizes).
+pub const MAX_DESIGNS: usize = 2_000_000;
+/// Most pump-set combinations.
+pub const MAX_PUMP_SETS: usize = 500;
+
+/// One evaluated design.
+#[derive(Debug, Clone, Serialize)]
+pub struct Evaluated {
+    pub design: Design,
+    pub design_text: String,
+    pub judged_shortfall_hours: f64,
+    pub judged_demand_met_fraction: f64,
+    pub meets_target: bool,
+    pub cost: CostBreakdown,
+    /// First year (calendar) the design misses the target, if within the horizon.
+    pub first_failing_year: Option<i32>,
+}
+
+/// A point of the cost–reliability front.
+#[derive(Debug, Clone, Serialize)]
+pub struct FrontPoint {
+    pub design_text: String,
+    pub judged_shortfall_hours: f64,
+    pub judged_demand_met_fraction: f64,
+    pub npv: f64,
+}
+
+/// A staged alternative: build less now, add the rest when the smaller design first fails.
+#[derive(Debug, Clone, Serialize)]
+pub struct Stage {
+    pub start_with: String,
+    pub fails_from_year: Option<i32>,
+    pub then_add: String,
+    /// NPV of building the chosen design at once minus the staged NPV (positive: staging saves).
+    pub capital_saving_pw: f64,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct SensitivityRow {
+    pub case: String,
+    pub applicable: bool,
+    pub judged_shortfall_hours: f64,
+    pub judged_demand_met_fraction: f64,
+    pub meets_target: bool,
+    pub npv: f64,
+}
+
+/// When nothing in the ranges meets the target.
+#[derive(Debug, Clone, Serialize)]
+pub struct Unreachable {
+    pub best_design: String,
+    pub best_shortfall_hours: f64,
+    pub best_demand_met_fraction: f64,
+    /// What limits it: source yield, energy, or pump capacity, with the figures behind it.
+    pub limited_by: String,
+}
+
+/// Solar schemes: the tank the mean days alone would call for, for comparison.
+#[derive(Debug, Clone, Serialize)]
+pub struct MeanDaysComparison {
+    pub tank_on_mean_days_m3: Option<f64>,
+    pub tank_on_ensemble_m3: f64,
+    pub explanation: String,
+}
+
+#[derive(Debug, Clone, Serialize)]
+pub struct SearchStats {
+    pub pump_sets: usize,
+    pub array_sizes: usize,
+    pub tank_sizes: usize,
+    pub designs_in_ranges: usize,
+    pub designs_evaluated: usize,
+    pub year_simulations: usize,
+}
+
+/// The result of sizing.
+#[derive(Debug, Clone, Serialize)]
+pub struct Plan {
+    pub scheme: String,
+    pub target_text: String,
+    pub judged_on: JudgedOn,
+    pub weather_years: usize,
+    pub chosen: Option<Evaluated>,
+    /// Full results of the chosen design (or of the best reachable one when none meets).
+    pub report: RunReport,
+    pub alternatives: Vec<Evaluated>,
+    pub front: Vec<FrontPoint>,
+    pub staging: Vec<Stage>,
+    pub sensitivity: Vec<SensitivityRow>,
+    pub unreachable: Option<Unreachable>,
+    pub mean_days: Option<MeanDaysComparison>,
+    pub next_smaller_tank_m3: Option<f64>,
+    pub stats: SearchStats,
+    pub notes: Vec<String>,
+}
+
+/// The target in words.
+pub fn target_text(s: &Scheme) -> String {
+    let mut parts = Vec::new();
+    if let Some(h) = s.targets.max_shortfall_hours_per_year {
+        parts.push(format!("at most {h:.0} shortfall hours a year"));
+    }
+    if let Some(m) = s.targets.min_demand_met_fraction {
+        parts.push(format!(
+            "at least {:.1} % of the year's demand met",
+            m * 100.0
+        ));
+    }
+    format!(
+        "{} in {} (the horizon year)",
+        parts.join(" and "),
+        s.horizon_year()
+    )
+}
+
+/// The tank sizes the search may choose from, ascending.
+pub fn tank_candidates(s: &Scheme) -> Vec<f64> {
+    match &s.tank.search {
+        Some(TankSearch::Range {
+            min_m3,
+            max_m3,
+            step_m3,
+        }) => {
+            let n = ((max_m3 - min_m3) / step_m3 + 1e-9).floor() as usize;
+            (0..=n).map(|k| min_m3 + k as f64 * step_m3).collect()
+        }
+        Some(TankSearch::Sizes(v)) => v.clone(),
+        None => s.tank.capacity_m3.into_iter().collect(),
+    }
+}
+
+/// Array sizes the search may choose from (W), ascending.
+pub fn array_candidates(s: &Scheme) -> Vec<f64> {
+    let Some(sol) = &s.solar else {
+        return vec![0.0];
+    };
+    match sol.array_range_w {
+        Some(r) => {
+            let n = ((r.max_w - r.min_w) / r.module_w + 1e-9).floor() as usize;
+            (0..=n).map(|k| r.min_w + k as f64 * r.module_w).collect()
+        }
+        None => sol.array_peak_w.into_iter().collect(),
+    }
+}
+
+/// Every combination of units (0..=max per type) except all zero, cheapest capital first.
+pub fn pump_sets(s: &Scheme) -> Result<Vec<Vec<u32>>, Error> {
+    let mut total: usize = 1;
+    for p in &s.pumps {
+        total = total.saturating_mul(p.max_units as usize + 1);
+    }
+    if total > MAX_PUMP_SETS {
+        return Err(Error::Input(format!(
+            "the pump ranges give {total} combinations of units; at most {MAX_PUMP_SETS} are searched — lower some pumps[].max_units"
+        )));
+    }
+    let mut sets = vec![Vec::new()];
+    for p in &s.pumps {
+        let mut next = Vec::new();
+        for set in &sets {
+            for n in 0..=p.max_units {
+                let mut v = set.clone();
+                v.push(n);
+                next.push(v);
+            }
+        }
+        sets = next;
+    }
+    sets.retain(|v| v.iter().any(|n| *n > 0));
+    Ok(sets)
+}
+
+fn uses_solar(s: &Scheme, units: &[u32]) -> bool {
+    s.pumps
+        .iter()
+        .zip(units)
+        .any(|(p, n)| *n > 0 && p.drive == DriveKind::Solar)
+}
+
+/// The search context.
+struct Search<'a> {
+    s: &'a Scheme,
+    m: &'a Model,
+    tanks: Vec<f64>,
+    /// Weather years in screening order (hardest first) and how many to screen.
+    order: Vec<usize>,
+    screen: usize,
+    horizon: u32,
+    evaluated: usize,
+}
+
+impl Search<'_> {
+    /// Does the design meet the target in `year`? `full`: judged on every weather year (exact,
+    /// stopping as soon as the answer is certain). Otherwise a screen: the two weather years
+    /// ranked just at the judged percentile on the largest design must both meet it (a
+    /// provisional answer either way; the chosen design is confirmed in full).
+    fn passes(&mut self, d: &Design, year: u32, full: bool) -> bool {
+        self.evaluated += 1;
+        if full {
+            return ensemble_passes(self.m, d, year, &self.order);
+        }
+        let sc = Scenario::default();
+        let abort = year_abort(self.m, year, &sc);
+        self.screen_years().iter().all(|w| {
+            year_meets_target(
+                self.s,
+                &self.m.run_year_with(d, year, *w, false, &sc, Some(abort)),
+            )
+        })
+    }
+
+    fn screen_years(&self) -> Vec<usize> {
+        let n = self.order.len();
+        let allowed = years_allowed_to_fail(self.s.targets.judged_on, n);
+        self.order[allowed.min(n - 1)..(allowed + self.screen).min(n)].to_vec()
+    }
+
+    /// Smallest tank index in `0..=hi` that passes, by bisection (shortfall assumed
+    /// non-increasing in tank size). None when even `hi` fails.
+    fn min_tank(&mut self, units: &[u32], array_w: f64, hi: usize) -> Option<usize> {
+        let d = |t: f64| Design {
+            tank_m3: t,
+            units: units.to_vec(),
+            array_w,
+        };
+        if !self.passes(&d(self.tanks[hi]), self.horizon, EXACT_SEARCH) {
+            return None;
+        }
+        let (mut lo, mut hi) = (0usize, hi);
+        if self.passes(&d(self.tanks[0]), self.horizon, EXACT_SEARCH) {
+            return Some(0);
+        }
+        // invariant: lo fails, hi passes
+        while hi - lo > 1 {
+            let mid = (lo + hi) / 2;
+            if self.passes(&d(self.tanks[mid]), self.horizon, EXACT_SEARCH) {
+                hi = mid;
+            } else {
+                lo = mid;
+            }
+        }
+        Some(hi)
+    }
+}
+
+/// The point at which a year has surely missed the target.
+fn year_abort(m: &Model, year: u32, sc: &Scenario) -> Abort {
+    let t = &m.scheme.targets;
+    Abort {
+        max_shortfall_hours: t.max_shortfall_hours_per_year.unwrap_or(f64::INFINITY),
+        max_unmet_m3: t.min_demand_met_fraction.map_or(f64::INFINITY, |f| {
+            (1.0 - f) * m.annual_demand_m3(year, sc) + 1e-9
+        }),
+    }
+}
+
+/// Exact ensemble check: true when no more weather years miss the target than the judged
+/// percentile allows. Years run in `order`; the check stops once the answer is certain.
+pub fn ensemble_passes(m: &Model, d: &Design, year: u32, order: &[usize]) -> bool {
+    let s = &m.scheme;
+    let sc = Scenario::default();
+    let n = m.weather_years();
+    let allowed = years_allowed_to_fail(s.targets.judged_on, n);
+    let abort = year_abort(m, year, &sc);
+    let mut fails = 0;
+    for (k, w) in order.iter().take(n).enumerate() {
+        let r = m.run_year_with(d, year, *w, false, &sc, Some(abort));
+        if !year_meets_target(s, &r) {
+            fails += 1;
+            if fails > allowed {
+                return false;
+            }
+        }
+        if fails + (n - k - 1) <= allowed {
+            return true;
+        }
+    }
+    true
+}
+
+/// Confirms a screened design on every weather year: steps the tank up until it passes, then
+/// down while the next smaller tank passes too. Returns the design (None when even the largest
+/// tank fails), the next smaller tank (which fails), and whether the screen had misled.
+fn confirm(search: &mut Search, mut d: Design) -> (Option<Design>, Option<f64>, bool) {
+    let tanks = search.tanks.clone();
+    let top = tanks.len() - 1;
+    let h = search.horizon;
+    let mut idx = tanks.iter().position(|t| *t == d.tank_m3).unwrap_or(0);
+    let mut stepped = false;
+    while !search.passes(&d, h, true) {
+        if idx == top {
+            return (None, None, stepped);
+        }
+        idx += 1;
+        d.tank_m3 = tanks[idx];
+        stepped = true;
+    }
+    while idx > 0 {
+        let smaller = Design {
+            tank_m3: tanks[idx - 1],
+            ..d.clone()
+        };
+        if !search.passes(&smaller, h, true) {
+            break;
+        }
+        idx -= 1;
+        d = smaller;
+    }
+    (Some(d), (idx > 0).then(|| tanks[idx - 1]), stepped)
+}
+
+/// Operation figures of a design in a year, from its judged weather year (or the only one).
+fn operation(m: &Model, d: &Design, year: u32, weather: usize, sc: &Scenario) -> Operation {
+    let r = m.run_year_with(d, year, weather, false, sc, None);
+    Operation {
+        fuel_l: r.annual.generator_fuel_l,
+        grid_kwh: r.annual.grid_energy_kwh,
+        generator_run_hours: if r.annual.generator_energy_kwh > 0.0 {
+            r.annual.pump_run_hours
+        } else {
+            0.0
+        },
+        delivered_m3: r.annual.delivered_m3,
+    }
+}
+
+fn cost_of(
+    m: &Model,
+    d: &Design,
+    sc: &Scenario,
+    median_w: usize,
+    fuel_factor: f64,
+) -> CostBreakdown {
+    let s = &m.scheme;
+    let first = operation(m, d, 0, median_w, sc);
+    let last = operation(m, d, s.info.horizon_years, median_w, sc);
+    cost::life_cycle_cost(s, d, &first, &last, fuel_factor)
+}
+
+/// First year the design misses the target, by bisection over the years (demand assumed
+/// non-decreasing with time); None when it meets it through the horizon.
+fn first_failing_year(m: &Model, d: &Design, order: &[usize]) -> Option<i32> {
+    let s = &m.scheme;
+    let h = s.info.horizon_years;
+    let ok = |y: u32| ensemble_passes(m, d, y, order);
+    if ok(h) {
+        return None;
+    }
+    if !ok(0) {
+        return Some(s.info.base_year);
+    }
+    let (mut lo, mut hi) = (0u32, h); // lo meets, hi fails
+    while hi - lo > 1 {
+        let mid = (lo + hi) / 2;
+        if ok(mid) {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    Some(s.info.base_year + hi as i32)
+}
+
+fn evaluated(
+    m: &Model,
+    d: &Design,
+    e: &Ensemble,
+    cost: CostBreakdown,
+    ffy: Option<i32>,
+) -> Evaluated {
+    Evaluated {
+        design_text: d.describe(&m.scheme),
+        design: d.clone(),
+        judged_shortfall_hours: e.judged_shortfall_hours,
+        judged_demand_met_fraction: e.judged_demand_met_fraction,
+        meets_target: meets_target(&m.scheme, e),
+        cost,
+        first_failing_year: ffy,
+    }
+}
+
+/// Index of the weather year at the median of shortfall for a design (for operation costs).
+fn median_weather(e: &Ensemble) -> usize {
+    let mut idx: Vec<usize> = (0..e.years.len()).collect();
+    idx.sort_by(|a, b| {
+        e.years[*a]
+            .annual
+            .shortfall_hours
+            .cmp(&e.years[*b].annual.shortfall_hours)
+            .then(a.cmp(b))
+    });
+    idx.get(idx.len() / 2).copied().unwrap_or(0)
+}
+
+/// Sizes the scheme.
+pub fn size(s: &Scheme) -> Result<Plan, Error> {
+    let m = Model::new(s)?;
+    size_with_model(&m)
+}
+
+/// Sizes with a prepared model.
+pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
+    let s = &m.scheme;
+    let tanks = tank_candidates(s);
+    if tanks.is_empty() {
+        return Err(Error::Input("tank: no tank sizes to search".into()));
+    }
+    let arrays_all = array_candidates(s);
+    let sets = pump_sets(s)?;
+    let designs_in_ranges = sets.len() * arrays_all.len() * tanks.len();
+    if designs_in_ranges > MAX_DESIGNS {
+        return Err(Error::Input(format!(
+            "the ranges hold {designs_in_ranges} designs; at most {MAX_DESIGNS} may be searched — narrow tank.capacity_range_m3, drives.solar.array_range_kwp or pumps[].max_units"
+        )));
+    }
+    let horizon = s.info.horizon_years;
+    let top_tank = tanks.len() - 1;
+    let biggest = Design {
+        tank_m3: tanks[top_tank],
+        units: s.pumps.iter().map(|p| p.max_units).collect(),
+        array_w: arrays_all.last().copied().unwrap_or(0.0),
+    };
+    // rank the weather years by how hard they are for the largest design
+    let big = m.run_ensemble(&biggest, horizon);
+    let mut order: Vec<usize> = (0..big.years.len()).collect();
+    order.sort_by(|a, b| {
+        let (ya, yb) = (&big.years[*a], &big.years[*b]);
+        yb.annual
+            .unmet_m3
+            .total_cmp(&ya.annual.unmet_m3)
+            .then(a.cmp(b))
+    });
+    let n = m.weather_years();
+    let allowed = years_allowed_to_fail(s.targets.judged_on, n);
+    let _ = allowed;
+    let screen = if n == 1 { 1 } else { 2 };
+    let mut search = Search {
+        s,
+        m,
+        tanks: tanks.clone(),
+        order,
+        screen,
+        horizon,
+        evaluated: 0,
+    };
+    let median_w = median_weather(&big);
+
+    // ---- the search
+    let mut order_sets: Vec<(f64, Vec<u32>)> = sets
+        .iter()
+        .map(|u| {
+            let a0 = if uses_solar(s, u) { arrays_all[0] } else { 0.0 };
+            let d = Design {
+                tank_m3: tanks[0],
+                units: u.clone(),
+                array_w: a0,
+            };
+            (cost::npv_lower_bound(s, &d), u.clone())
+        })
+        .collect();
+    order_sets.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+    let mut best: Option<(f64, Design)> = None;
+    // cheapest design per number of pump units in total (for the alternatives)
+    let mut per_count: std::collections::BTreeMap<u32, (f64, Design)> = Default::default();
+    for (_, units) in &order_sets {
+        let arrays: Vec<f64> = if uses_solar(s, units) {
+            arrays_all.clone()
+        } else {
+            vec![0.0]
+        };
+        let mut hi = top_tank;
+        for a in arrays {
+            let lb_design = Design {
+                tank_m3: tanks[0],
+                units: units.clone(),
+                array_w: a,
+            };
+            let lb = cost::npv_lower_bound(s, &lb_design);
+            let count: u32 = units.iter().sum();
+            let beats_count = per_count.get(&count).is_none_or(|(c, _)| lb < *c);
+            if best.as_ref().is_some_and(|(c, _)| lb >= *c) && !beats_count {
+                break; // larger arrays only cost more
+            }
+            let Some(t) = search.min_tank(units, a, hi) else {
+                continue;
+            };
+            hi = t;
+            let d = Design {
+                tank_m3: tanks[t],
+                units: units.clone(),
+                array_w: a,
+            };
+            let c = cost_of(m, &d, &Scenario::default(), median_w, 1.0).npv;
+            if best.as_ref().is_none_or(|(b, _)| c < *b) {
+                best = Some((c, d.clone()));
+            }
+            if per_count.get(&count).is_none_or(|(b, _)| c < *b) {
+                per_count.insert(count, (c, d.clone()));
+            }
+            if t == 0 {
+                break; // a larger array cannot need a smaller tank than the smallest
+            }
+        }
+    }
+
+    // ---- confirm the chosen design on every weather year; step up if the screen misled
+    let mut notes = Vec::new();
+    let mut next_smaller = None;
+    let chosen_design = match best {
+        Some((_, d)) => {
+            let (d, smaller, stepped) = confirm(&mut search, d);
+            next_smaller = smaller;
+            if stepped {
+                notes.push("the screening years passed a tank that the full ensemble did not; the tank was stepped up until every weather year was judged".to_string());
+            }
+            d
+        }
+        None => None,
+    };
+    // the alternatives get the same confirmation; the chosen design stands for its own count
+    let mut confirmed_alts: Vec<Design> = Vec::new();
+    for (_, (_, d)) in per_count.iter() {
+        let same_set = chosen_design
+            .as_ref()
+            .is_some_and(|c| c.units.iter().sum::<u32>() == d.units.iter().sum::<u32>());
+        if same_set {
+            confirmed_alts.push(chosen_design.clone().expect("chosen"));
+        } else if let (Some(c), _, _) = confirm(&mut search, d.clone()) {
+            confirmed_alts.push(c);
+        }
+    }
+
+    // ---- report on the chosen design or the best reachable
+    let shown = chosen_design.clone().unwrap_or_else(|| biggest.clone());
+    let report = simulate::run_report(m, &shown);
+    let median_w = median_weather(&report.horizon_year);
+    let chosen = chosen_design.as_ref().map(|d| {
+        let c = cost_of(m, d, &Scenario::default(), median_w, 1.0);
+        evaluated(m, d, &report.horizon_year, c, report.first_failing_year)
+    });
+    let unreachable = if chosen.is_none() {
+        Some(diagnose(m, &biggest, &report))
+    } else {
+        None
+    };
+
+    // ---- alternatives: cheapest per pump count, with full figures
+    let mut alternatives = Vec::new();
+    for d in &confirmed_alts {
+        let e = m.run_ensemble(d, horizon);
+        let c = cost_of(m, d, &Scenario::default(), median_weather(&e), 1.0);
+        let ffy = first_failing_year(m, d, &search.order);
+        alternatives.push(evaluated(m, d, &e, c, ffy));
+    }
+    alternatives.sort_by(|a, b| a.cost.npv.total_cmp(&b.cost.npv));
+
+    // ---- cost–reliability front over tank sizes around the chosen pump set and array
+    let front = chosen_design
+        .as_ref()
+        .map(|d| front(m, d, &tanks, median_w))
+        .unwrap_or_default();
+
+    // ---- staging and sensitivity
+    let staging = chosen_design
+        .as_ref()
+        .map(|d| staging(m, d, &arrays_all, median_w, &search.order))
+        .unwrap_or_default();
+    let sensitivity = chosen_design
+        .as_ref()
+        .map(|d| sensitivity(m, d, median_w))
+        .transpose()?
+        .unwrap_or_default();
+
+    // ---- mean days vs the ensemble (solar with varying weather)
+    let mean_days = match (&chosen_design, &s.weather.mode) {
+        (Some(d), WeatherMode::Synthetic { .. } | WeatherMode::File { .. }) if s.uses_solar() => {
+            Some(mean_days_comparison(s, d, &tanks)?)
+        }
+        _ => None,
+    };
+
+    let stats = SearchStats {
+        pump_sets: sets.len(),
+        array_sizes: arrays_all.len(),
+        tank_sizes: tanks.len(),
+        designs_in_ranges,
+        designs_evaluated: search.evaluated,
+        year_simulations: m.simulations_run(),
+    };
+    Ok(Plan {
+        scheme: s.info.name.clone(),
+        target_text: target_text(s),
+        judged_on: s.targets.judged_on,
+        weather_years: n,
+        chosen,
+        report,
+        alternatives,
+        front,
+        staging,
+        sensitivity,
+        unreachable,
+        mean_days,
+        next_smaller_tank_m3: next_smaller,
+        stats,
+        notes,
+    })
+}
+
+/// What limits the best reachable design.
+fn diagnose(m: &Model, d: &Design, r: &RunReport) -> Unreachable {
+    let s = &m.scheme;
+    let y: &YearResult = &r.horizon_year.years[r
+        .horizon_year
+        .representative
+        .min(r.horizon_year.years.len().saturating_sub(1))];
+    let demand = y.annual.demand_m3;
+    let safe_yield_m3: f64 = s
+        .boreholes
+        .iter()
+        .map(|b| b.safe_yield_m3_per_s() * 3600.0 * 24.0 * 365.0)
+        .sum::<f64>()
+        + s.streams
+            .iter()
+            .map(|st| st.flow_m3_per_s * 3600.0 * 24.0 * 365.0)
+            .sum::<f64>();
+    let limited_by = if y.yield_capped_hours > 100
+        || (safe_yield_m3 > 0.0 && safe_yield_m3 < demand)
+    {
+        format!(
+            "source yield: the pumps were held at the safe yield for {} hours of the horizon year; the sources' safe yield is {:.0} m³/year against a demand of {:.0} m³",
+            y.yield_capped_hours, safe_yield_m3, demand
+        )
+    } else if y.dry_run_stop_hours > 100 {
+        format!(
+            "drawdown: dry-run protection stopped the pumps for {} hours; the intake is too shallow for the drawdown at this pumping rate",
+            y.dry_run_stop_hours
+        )
+    } else if s.uses_solar() || s.generator.is_some() || s.grid.is_some() {
+        format!(
+            "energy or pump capacity: with the largest design the pumps ran {:.0} hours and lifted {:.0} m³ against a demand of {:.0} m³; more array, more generator hours or more pump units are needed",
+            y.annual.pump_run_hours, y.annual.pumped_m3, demand
+        )
+    } else {
+        format!(
+            "pump capacity: the pumps lifted {:.0} m³ against a demand of {:.0} m³",
+            y.annual.pumped_m3, demand
+        )
+    };
+    Unreachable {
+        best_design: d.describe(s),
+        best_shortfall_hours: r.horizon_year.judged_shortfall_hours,
+        best_demand_met_fraction: r.horizon_year.judged_demand_met_fraction,
+        limited_by,
+    }
+}
+
+fn front(m: &Model, d: &Design, tanks: &[f64], median_w: usize) -> Vec<FrontPoint> {
+    let s = &m.scheme;
+    let idx = tanks.iter().position(|t| *t == d.tank_m3).unwrap_or(0);
+    let mut picks: Vec<usize> = [0.25, 0.5, 0.75, 1.0, 1.5, 2.0]
+        .iter()
+        .map(|f| {
+            let want = d.tank_m3 * f;
+            (0..tanks.len())
+                .min_by(|a, b| {
+                    (tanks[*a] - want)
+                        .abs()
+                        .total_cmp(&(tanks[*b] - want).abs())
+                })
+                .unwrap_or(idx)
+        })
+        .collect();
+    picks.sort_unstable();
+    picks.dedup();
+    let mut pts: Vec<FrontPoint> = picks
+        .into_iter()
+        .map(|i| {
+            let dd = Design {
+                tank_m3: tanks[i],
+                ..d.clone()
+            };
+            let e = m.run_ensemble(&dd, s.info.horizon_years);
+            FrontPoint {
+                design_text: dd.describe(s),
+                judged_shortfall_hours: e.judged_shortfall_hours,
+                judged_demand_met_fraction: e.judged_demand_met_fraction,
+                npv: cost_of(m, &dd, &Scenario::default(), median_w, 1.0).npv,
+            }
+        })
+        .collect();
+    // keep the non-dominated points: cheaper ones must have more shortfall
+    pts.sort_by(|a, b| a.npv.total_cmp(&b.npv));
+    let mut out: Vec<FrontPoint> = Vec::new();
+    for p in pts {
+        if out
+            .last()
+            .is_none_or(|q| p.judged_shortfall_hours < q.judged_shortfall_hours)
+        {
+            out.push(p);
+        }
+    }
+    out
+}
+
+fn staging(m: &Model, d: &Design, arrays: &[f64], median_w: usize, order: &[usize]) -> Vec<Stage> {
+    let s = &m.scheme;
+    let i = s.costs.discount_rate;
+    let full = cost_of(m, d, &Scenario::default(), median_w, 1.0);
+    let mut stages = Vec::new();
+    let mut smaller = Vec::new();
+    for (k, p) in s.pumps.iter().enumerate() {
+        if d.units[k] > 0 && d.units.iter().sum::<u32>() > 1 {
+            let mut u = d.units.clone();
+            u[k] -= 1;
+            smaller.push((
+                Design {
+                    units: u,
+                    ..d.clone()
+                },
+                format!("1 × {}", p.name),
+            ));
+        }
+    }
+    if let Some(pos) = arrays.iter().position(|a| *a == d.array_w)
+        && pos > 0
+        && uses_solar(s, &d.units)
+    {
+        let step = (pos / 3).max(1);
+        let a = arrays[pos - step];
+        smaller.push((
+            Design {
+                array_w: a,
+                ..d.clone()
+            },
+            format!("{:.2} kWp of array", (d.array_w - a) / 1000.0),
+        ));
+    }
+    for (sd, add) in smaller {
+        let ffy = first_failing_year(m, &sd, order);
+        let saving = match ffy {
+            Some(y) if y > s.info.base_year => {
+                let years = (y - s.info.base_year) as f64;
+                let extra =
+                    full.capital - cost::capital_items(s, &sd).iter().map(|x| x.1).sum::<f64>();
+                extra * (1.0 - crate::physics::money::present_worth_factor_single(i, years))
+            }
+            _ => 0.0,
+        };
+        stages.push(Stage {
+            start_with: sd.describe(s),
+            fails_from_year: ffy,
+            then_add: add,
+            capital_saving_pw: saving,
+        });
+    }
+    stages
+}
+
+fn sensitivity(m: &Model, d: &Design, median_w: usize) -> Result<Vec<SensitivityRow>, Error> {
+    let s = &m.scheme;
+    let h = s.info.horizon_years;
+    let sens = &s.sensitivity;
+    let mut rows = Vec::new();
+    let row = |case: String, mm: &Model, sc: Scenario, fuel: f64| -> SensitivityRow {
+        let years: Vec<YearResult> = (0..mm.weather_years())
+            .map(|w| mm.run_year_with(d, h, w, false, &sc, None))
+            .collect();
+        let e = simulate::summarise(&mm.scheme, years);
+        SensitivityRow {
+            case,
+            applicable: true,
+            judged_shortfall_hours: e.judged_shortfall_hours,
+            judged_demand_met_fraction: e.judged_demand_met_fraction,
+            meets_target: meets_target(&mm.scheme, &e),
+            npv: cost_of(mm, d, &sc, median_w.min(mm.weather_years() - 1), fuel).npv,
+        }
+    };
+    let na = |case: String| SensitivityRow {
+        case,
+        applicable: false,
+        judged_shortfall_hours: 0.0,
+        judged_demand_met_fraction: 0.0,
+        meets_target: false,
+        npv: 0.0,
+    };
+    rows.push(row("as planned".into(), m, Scenario::default(), 1.0));
+    rows.push(row(
+        format!("demand {:+.0} %", sens.demand_fraction * 100.0),
+        m,
+        Scenario {
+            demand_factor: 1.0 + sens.demand_fraction,
+            ..Scenario::default()
+        },
+        1.0,
+    ));
+    {
+        let mut s2 = s.clone();
+        s2.demand.growth_rate_per_year += sens.growth_points;
+        let f = daily_demand(&s2, h).supplied_m3_per_day / daily_demand(s, h).supplied_m3_per_day;
+        rows.push(row(
+            format!(
+                "population growth {:+.1} points",
+                sens.growth_points * 100.0
+            ),
+            m,
+            Scenario {
+                demand_factor: f,
+                ..Scenario::default()
+            },
+            1.0,
+        ));
+    }
+    let irr_case = format!("irradiation {:+.0} %", sens.irradiation_fraction * 100.0);
+    if uses_solar(s, &d.units) {
+        let m2 = Model::with_irradiation(s, 1.0 + sens.irradiation_fraction)?;
+        rows.push(row(irr_case, &m2, Scenario::default(), 1.0));
+    } else {
+        rows.push(na(irr_case));
+    }
+    let y_case = format!("borehole yield {:+.0} %", sens.yield_fraction * 100.0);
+    if s.boreholes.is_empty() {
+        rows.push(na(y_case));
+    } else {
+        rows.push(row(
+            y_case,
+            m,
+            Scenario {
+                yield_factor: 1.0 + sens.yield_fraction,
+                ..Scenario::default()
+            },
+            1.0,
+        ));
+    }
+    let f_case = format!("fuel price {:+.0} %", sens.fuel_price_fraction * 100.0);
+    if s.generator.is_some()
+        && s.pumps
+            .iter()
+            .zip(&d.units)
+            .any(|(p, n)| *n > 0 && p.drive == DriveKind::Generator)
+    {
+        rows.push(row(
+            f_case,
+            m,
+            Scenario::default(),
+            1.0 + sens.fuel_price_fraction,
+        ));
+    } else {
+        rows.push(na(f_case));
+    }
+    Ok(rows)
+}
+
+fn mean_days_comparison(
+    s: &Scheme,
+    d: &Design,
+    tanks: &[f64],
+) -> Result<MeanDaysComparison, Error> {
+    let mut s2 = s.clone();
+    s2.weather.mode = WeatherMode::MeanDays;
+    let m2 = Model::new(&s2)?;
+    let h = s.info.horizon_years;
+    let idx = tanks
+        .iter()
+        .position(|t| *t == d.tank_m3)
+        .unwrap_or(tanks.len() - 1);
+    let ok = |t: f64| {
+        let dd = Design {
+            tank_m3: t,
+            ..d.clone()
+        };
+        meets_target(&s2, &m2.run_ensemble(&dd, h))
+    };
+    let mut found = None;
+    if ok(tanks[idx]) {
+        let (mut lo, mut hi) = (0usize, idx);
+        if ok(tanks[0]) {
+            found = Some(tanks[0]);
+        } else {
+            while hi - lo > 1 {
+                let mid = (lo + hi) / 2;
+                if ok(tanks[mid]) {
+                    hi = mid;
+                } else {
+                    lo = mid;
+                }
+            }
+            found = Some(tanks[hi]);
+        }
+    }
+    let explanation = match found {
+        Some(t) if t < d.tank_m3 => format!(
+            "On mean days alone (every day of a month its average, no cloudy spells) a {} m³ tank would meet the target; judged on the {} of the weather years with cloudy spells it needs {} m³. The mean-day figure hides the runs of grey days that empty a tank.",
+            simulate::fmt_g(t),
+            match s.targets.judged_on { JudgedOn::Median => "median", JudgedOn::P90 => "1-in-10 (90th percentile) shortfall" },
+            simulate::fmt_g(d.tank_m3)
+        ),
+        Some(_) => format!(
+            "On mean days alone the same {} m³ tank is needed; the weather ensemble does not change the tank for this pump set and array.",
+            simulate::fmt_g(d.tank_m3)
+        ),
+        None => "On mean days the chosen pump set and array cannot meet the target in the tank range (unexpected: check the irradiation data).".into(),
+    };
+    Ok(MeanDaysComparison {
+        tank_on_mean_days_m3: found,
+        tank_on_ensemble_m3: d.tank_m3,
+        explanation,
+    })
+}
