@@ -4,22 +4,36 @@ use std::path::PathBuf;
 
 use clap::{Args, Parser, Subcommand};
 
-pub const CAUTION: &str = "\
-CAUTION: tapplan plans; it does not certify. Water supply can hurt people. Test water quality
+/// The caution every help text carries.
+macro_rules! caution {
+    () => {
+        "CAUTION: tapplan plans; it does not certify. Water supply can hurt people. Test water quality
 before use and protect the source from contamination; have elevated tanks designed by a
 structural engineer; have PV and generator electrics installed by qualified people. Local codes,
-water-quality testing and licensed practice take precedence over anything this tool prints.";
+water-quality testing and licensed practice take precedence over anything this tool prints."
+    };
+}
+
+/// An example block followed by the caution.
+macro_rules! help_with_caution {
+    ($ex:expr) => {
+        concat!($ex, "\n\n", caution!())
+    };
+}
+
+pub const CAUTION: &str = caution!();
 
 #[derive(Debug, Parser)]
 #[command(
     name = "tapplan",
     version,
+    propagate_version = true,
     about = "Plans a village water supply: tank size, pump count and hours a year the taps run dry",
     long_about = "Plans a village water supply from one YAML scheme file: simulates the storage tank \
 hour by hour over a year and the design horizon, finds the least-cost tank size and pump count \
 that meets the reliability target, and prints the plan.",
     after_help = CAUTION,
-    after_long_help = concat!("Example:\n  tapplan new village.yaml --template solar\n  tapplan check village.yaml\n\n", "CAUTION: tapplan plans; it does not certify. Water supply can hurt people. Test water quality\nbefore use and protect the source from contamination; have elevated tanks designed by a\nstructural engineer; have PV and generator electrics installed by qualified people. Local codes,\nwater-quality testing and licensed practice take precedence over anything this tool prints.")
+    after_long_help = help_with_caution!("Example:\n  tapplan new village.yaml --template solar\n  tapplan check village.yaml\n  tapplan plan village.yaml -o village-plan.pdf")
 )]
 pub struct Cli {
     #[command(subcommand)]
@@ -30,20 +44,20 @@ pub struct Cli {
 pub enum Command {
     /// Write a starter scheme file from a template
     #[command(
-        after_help = "Example:\n  tapplan new kijiji.yaml --template solar\n  tapplan new --list"
+        after_help = help_with_caution!("Example:\n  tapplan new kijiji.yaml --template solar\n  tapplan new --list")
     )]
     New(NewArgs),
     /// Validate scheme files and print a short table per file
-    #[command(after_help = "Example:\n  tapplan check samples/*.yaml")]
+    #[command(after_help = help_with_caution!("Example:\n  tapplan check samples/*.yaml"))]
     Check(CheckArgs),
     /// Simulate a design hour by hour over a year and the design horizon
     #[command(
-        after_help = "Example:\n  tapplan run samples/kessa-ridge-solar.yaml\n  tapplan run samples/kessa-ridge-solar.yaml --tank-m3 80 --pumps SolarSub-9=2 --hourly hours.csv"
+        after_help = help_with_caution!("Example:\n  tapplan run samples/kessa-ridge-solar.yaml\n  tapplan run samples/kessa-ridge-solar.yaml --tank-m3 80 --pumps SolarSub-9=2 --hourly hours.csv")
     )]
     Run(RunArgs),
     /// Search the least-cost tank, pump count and array that meet the target
     #[command(
-        after_help = "Example:\n  tapplan size samples/kessa-ridge-solar.yaml\n  tapplan size samples/kessa-ridge-solar.yaml --json plan.json"
+        after_help = help_with_caution!("Example:\n  tapplan size samples/kessa-ridge-solar.yaml\n  tapplan size samples/kessa-ridge-solar.yaml --json plan.json")
     )]
     Size(SizeArgs),
 }

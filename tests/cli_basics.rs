@@ -169,7 +169,7 @@ fn every_subcommand_has_help() {
 }
 
 #[test]
-#[ignore = "cli.rs: subcommand help lacks the caution text (add after_help = CAUTION to each subcommand)"]
+
 fn every_subcommand_help_shows_the_caution() {
     for sub in SUBCOMMANDS {
         tapplan()
@@ -181,7 +181,7 @@ fn every_subcommand_help_shows_the_caution() {
 }
 
 #[test]
-#[ignore = "cli.rs: `tapplan new --version` is refused (needs `propagate_version = true` on the top-level command)"]
+
 fn every_subcommand_has_version() {
     for sub in SUBCOMMANDS {
         tapplan()

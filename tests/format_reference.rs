@@ -4,7 +4,7 @@
 //! (and the `### \`section\`` headings). They are compared with
 //! (a) every key used in the samples and templates, and
 //! (b) every key the loader knows, found by asking the loader itself: a key it does not know
-//!     (`zz_unknown_key`) is put in each place a mapping can go, and the "Keys allowed here:"
+//!     (`zz_unknown_key`) is put in each place a mapping can go, and the "keys allowed here:"
 //!     list in `tapplan check`'s message is read back. Each allowed key is then probed in turn
 //!     (as a mapping, then as a list of mappings) to find the sections below it.
 //!
@@ -149,7 +149,7 @@ fn allowed_keys(paths: &[Vec<Step>]) -> Vec<Option<Vec<String>>> {
                 .find(|l| l.contains(&format!("unknown key `{PROBE}`")))
                 .map(|l| {
                     let list = l
-                        .split("Keys allowed here: ")
+                        .split("keys allowed here: ")
                         .nth(1)
                         .expect("the unknown-key message lists the allowed keys");
                     list.split(", ").map(|k| k.trim().to_string()).collect()

@@ -24,6 +24,9 @@ pub const MAX_NESTING: usize = 32;
 #[derive(Debug, Default, Clone)]
 pub struct LineMap {
     lines: BTreeMap<String, (usize, usize)>,
+    /// Keys that appear twice in one mapping: (path, line, column) of the repeat.
+    duplicates: Vec<(String, usize, usize)>,
+    depth: usize,
 }
 
 impl LineMap {
@@ -35,7 +38,16 @@ impl LineMap {
         if parser.load(&mut rec, false).is_err() {
             return LineMap::default();
         }
-        LineMap { lines: rec.lines }
+        LineMap {
+            lines: rec.lines,
+            duplicates: rec.duplicates,
+            depth: rec.depth,
+        }
+    }
+
+    /// The first repeated key, if any: (path, line, column).
+    pub fn first_duplicate(&self) -> Option<&(String, usize, usize)> {
+        self.duplicates.first()
     }
 
     /// Line and column of a field path, or of its nearest recorded parent.
@@ -55,11 +67,7 @@ impl LineMap {
 
     /// The most nested collection depth seen.
     pub fn max_depth(&self) -> usize {
-        self.lines
-            .keys()
-            .map(|k| k.matches(['.', '[']).count() + 1)
-            .max()
-            .unwrap_or(0)
+        self.depth
     }
 }
 
@@ -81,6 +89,8 @@ enum Frame {
 struct LineRecorder {
     stack: Vec<Frame>,
     lines: BTreeMap<String, (usize, usize)>,
+    duplicates: Vec<(String, usize, usize)>,
+    depth: usize,
     depth_exceeded: bool,
 }
 
@@ -123,7 +133,14 @@ impl MarkedEventReceiver for LineRecorder {
                         *key = k.clone();
                         *expect_key = false;
                         let p = join(path, k);
-                        self.lines.entry(p).or_insert(pos);
+                        match self.lines.entry(p) {
+                            std::collections::btree_map::Entry::Occupied(e) => {
+                                self.duplicates.push((e.key().clone(), pos.0, pos.1));
+                            }
+                            std::collections::btree_map::Entry::Vacant(e) => {
+                                e.insert(pos);
+                            }
+                        }
                         return;
                     }
                     // complex key: skip its subtree, and its value
@@ -146,6 +163,9 @@ impl MarkedEventReceiver for LineRecorder {
         }
         if self.stack.len() > MAX_NESTING {
             self.depth_exceeded = true;
+        }
+        if matches!(ev, Event::MappingStart(..) | Event::SequenceStart(..)) {
+            self.depth = self.depth.max(self.stack.len() + 1);
         }
         match ev {
             Event::MappingStart(..) => self.stack.push(match node_path {
@@ -302,8 +322,23 @@ pub fn parse_raw(src: &Source) -> Result<(RawScheme, LineMap), SchemeError> {
             "the file is empty; start from a template with `tapplan new FILE`".into(),
         )]));
     }
+    let lines = LineMap::build(&src.text);
     let mut value: serde_yaml::Value = match serde_yaml::from_str(&src.text) {
         Ok(v) => v,
+        Err(e)
+            if e.to_string().contains("duplicate entry") && lines.first_duplicate().is_some() =>
+        {
+            let (field, line, column) = lines.first_duplicate().cloned().expect("duplicate");
+            return Err(fail(vec![Problem {
+                field: field.clone(),
+                line: Some(line),
+                column: Some(column),
+                message: format!(
+                    "this key appears twice in the same section; keep one `{}`",
+                    field.rsplit('.').next().unwrap_or(&field)
+                ),
+            }]));
+        }
         Err(e) => {
             let (line, column) = e
                 .location()
@@ -317,12 +352,16 @@ pub fn parse_raw(src: &Source) -> Result<(RawScheme, LineMap), SchemeError> {
             }]));
         }
     };
-    let lines = LineMap::build(&src.text);
     if lines.max_depth() > MAX_NESTING {
         return Err(fail(vec![whole_file_problem(format!(
             "the YAML is nested {} levels deep; a scheme needs at most a handful (limit {MAX_NESTING})",
             lines.max_depth()
         ))]));
+    }
+    if value.is_null() {
+        return Err(fail(vec![whole_file_problem(
+            "the file is empty (only comments or blank lines); start from a template with `tapplan new FILE`".into(),
+        )]));
     }
     if !value.is_mapping() {
         return Err(fail(vec![Problem {
@@ -332,7 +371,8 @@ pub fn parse_raw(src: &Source) -> Result<(RawScheme, LineMap), SchemeError> {
             message: "a scheme file is a YAML mapping with sections `scheme`, `demand`, `pumps`, `tank`, `targets`, …; start from a template with `tapplan new FILE`".into(),
         }]));
     }
-    let mut problems = Vec::new();
+    let mut problems: Vec<Problem> = Vec::new();
+    let mut removed: Vec<String> = Vec::new();
     for _ in 0..200 {
         match serde_path_to_error::deserialize::<_, RawScheme>(value.clone()) {
             Ok(raw) => {
@@ -346,8 +386,15 @@ pub fn parse_raw(src: &Source) -> Result<(RawScheme, LineMap), SchemeError> {
                 let path = if path == "." { String::new() } else { path };
                 let msg = err.into_inner().to_string();
                 let (problem, removable) = describe_serde_error(&path, &msg, &lines);
+                // a key removed for its wrong type is then "missing": already reported
+                if msg.starts_with("missing field") && removed.contains(&problem.field) {
+                    return Err(fail(problems));
+                }
                 let stop = match &removable {
-                    Some(p) => !remove_path(&mut value, p),
+                    Some(p) => {
+                        removed.push(p.clone());
+                        !remove_path(&mut value, p)
+                    }
                     None => true,
                 };
                 problems.push(problem);
@@ -378,7 +425,7 @@ fn describe_serde_error(path: &str, msg: &str, lines: &LineMap) -> (Problem, Opt
         if let Some(s) = closest(unknown, &known) {
             message.push_str(&format!("; did you mean `{s}`?"));
         }
-        message.push_str(&format!(" Keys allowed here: {}", known.join(", ")));
+        message.push_str(&format!("; keys allowed here: {}", known.join(", ")));
         let (line, column) = locate(&field).map_or((None, None), |(l, c)| (Some(l), Some(c)));
         return (
             Problem {
@@ -420,7 +467,7 @@ fn describe_serde_error(path: &str, msg: &str, lines: &LineMap) -> (Problem, Opt
     let message = if msg.contains("untagged enum RawProfile") {
         "give a built-in profile name (communal_taps, yard_taps, flat) or a list of 24 hourly factors".to_string()
     } else if let Some(rest) = msg.strip_prefix("invalid type: ") {
-        format!("wrong kind of value: {rest}")
+        format!("wrong kind of value: {}", plain_types(rest))
     } else {
         msg.to_string()
     };
@@ -438,6 +485,25 @@ fn describe_serde_error(path: &str, msg: &str, lines: &LineMap) -> (Problem, Opt
         },
         removable,
     )
+}
+
+/// Serde's type names in plain words.
+fn plain_types(msg: &str) -> String {
+    let mut out = msg.to_string();
+    for (from, to) in [
+        ("expected f64", "expected a number"),
+        ("expected u32", "expected a whole number"),
+        ("expected a boolean", "expected true or false"),
+        ("unit value", "an empty value"),
+        ("expected a string", "expected text"),
+    ] {
+        out = out.replace(from, to);
+    }
+    if let Some(i) = out.find("expected struct Raw") {
+        out.truncate(i);
+        out.push_str("expected a section of keys (a mapping)");
+    }
+    out
 }
 
 /// Removes the mapping entry at a dotted path (`a.b[2].c`). Returns false if not found.

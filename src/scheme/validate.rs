@@ -30,6 +30,8 @@ fn fmt_num(v: f64) -> String {
         } else {
             "-infinity".into()
         }
+    } else if v.abs() >= 1e9 {
+        format!("{v:e}")
     } else {
         format!("{v}")
     }
@@ -760,7 +762,11 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
                 20.0,
                 "units of this type that may be installed",
             ),
-            None => p.units.map(|u| u.max(1.0) as u32).unwrap_or(1).min(20),
+            None => p
+                .units
+                .filter(|u| u.is_finite())
+                .map(|u| u.round().clamp(1.0, 20.0) as u32)
+                .unwrap_or(1),
         };
         let units = p
             .units
@@ -1047,7 +1053,7 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
             &format!("{f}.capacity_m3"),
             v,
             20_000.0,
-            "m³ (a tank of zero cannot store water)",
+            "m³; a tank of zero cannot store water",
         )
     });
     let mut search = None;
