@@ -47,9 +47,16 @@ pub enum Command {
         after_help = help_with_caution!("Example:\n  tapplan new kijiji.yaml --template solar\n  tapplan new --list")
     )]
     New(NewArgs),
-    /// Validate scheme files and print a short table per file
-    #[command(after_help = help_with_caution!("Example:\n  tapplan check samples/*.yaml"))]
+    /// Validate scheme files and check each proposal against the rules
+    #[command(
+        after_help = help_with_caution!("Exit status: 0 all rules pass (warnings allowed), 1 a rule fails, 2 a file is invalid.\n\nExample:\n  tapplan check samples/*.yaml\n  tapplan check samples/*.yaml --rules samples/rules/district-example.yaml --json")
+    )]
     Check(CheckArgs),
+    /// List the rules in force with their limits, severities and sources
+    #[command(
+        after_help = help_with_caution!("Example:\n  tapplan rules\n  tapplan rules --rules samples/rules/district-example.yaml")
+    )]
+    Rules(RulesArgs),
     /// Simulate a design hour by hour over a year and the design horizon
     #[command(
         after_help = help_with_caution!("Example:\n  tapplan run samples/kessa-ridge-solar.yaml\n  tapplan run samples/kessa-ridge-solar.yaml --tank-m3 80 --pumps SolarSub-9=2 --hourly hours.csv")
@@ -123,4 +130,20 @@ pub struct CheckArgs {
     /// Scheme files to check
     #[arg(required = true)]
     pub files: Vec<PathBuf>,
+    /// District rules file that changes or adds to the default rules
+    #[arg(long, value_name = "FILE")]
+    pub rules: Option<PathBuf>,
+    /// Print the results as JSON on standard output instead of tables
+    #[arg(long)]
+    pub json: bool,
+}
+
+#[derive(Debug, Args)]
+pub struct RulesArgs {
+    /// District rules file that changes or adds to the default rules
+    #[arg(long, value_name = "FILE")]
+    pub rules: Option<PathBuf>,
+    /// Print the rules as JSON
+    #[arg(long)]
+    pub json: bool,
 }

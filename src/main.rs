@@ -52,6 +52,7 @@ fn run(cli: Cli) -> anyhow::Result<Outcome> {
     match cli.command {
         Command::New(a) => cmd_new(a),
         Command::Check(a) => cmd_check(a),
+        Command::Rules(a) => cmd_rules(a),
         Command::Run(a) => cmd_run(a),
         Command::Size(a) => cmd_size(a),
     }
@@ -283,24 +284,109 @@ fn cmd_new(a: cli::NewArgs) -> anyhow::Result<Outcome> {
     Ok(Outcome::Ok)
 }
 
+/// The rules in force: the defaults, changed by `--rules FILE` when given (exit 2 when bad).
+fn rule_set(path: &Option<std::path::PathBuf>) -> Result<tapplan::rules::RuleSet, Outcome> {
+    match path {
+        None => Ok(tapplan::rules::RuleSet::defaults()),
+        Some(p) => tapplan::rules::RuleSet::load(p).map_err(|e| {
+            eprint!("{e}");
+            Outcome::BadInput
+        }),
+    }
+}
+
 fn cmd_check(a: cli::CheckArgs) -> anyhow::Result<Outcome> {
-    let mut worst = Outcome::Ok;
-    for f in &a.files {
-        match tapplan::scheme::load_file(f) {
-            Ok(loaded) => {
-                println!("{}: valid", f.display());
-                println!("{}", tapplan::output::table::scheme_summary(&loaded.scheme));
-                for w in &loaded.scheme.warnings {
-                    println!("  warning: {w}");
-                }
-            }
-            Err(e) => {
-                eprint!("{e}");
-                worst = Outcome::BadInput;
+    use std::io::IsTerminal;
+    use tapplan::rules::render;
+    let rules = tryo!(rule_set(&a.rules));
+    let total = a.files.len();
+    let progress = total > 20 && std::io::stderr().is_terminal();
+    let on_done = |n: usize| {
+        if progress {
+            eprint!("\rchecked {n}/{total} files");
+        }
+    };
+    let checks = tapplan::rules::check_files(&a.files, &rules, &on_done);
+    if progress {
+        eprintln!();
+    }
+    let summary = render::BatchSummary::of(&checks);
+    if a.json {
+        let out = render::CheckJson {
+            rules_district: rules.district.as_deref(),
+            rules_file: rules.file.as_deref(),
+            files: &checks,
+            summary,
+        };
+        println!("{}", serde_json::to_string_pretty(&out)?);
+        for fc in &checks {
+            if let Some(t) = &fc.error_text {
+                eprint!("{t}");
             }
         }
+    } else {
+        if let Some(d) = &rules.district {
+            println!(
+                "Rules: defaults changed by {} ({d})",
+                rules.file.as_deref().unwrap_or("?")
+            );
+        } else if let Some(f) = &rules.file {
+            println!("Rules: defaults changed by {f}");
+        }
+        for fc in &checks {
+            if let Some(t) = &fc.error_text {
+                eprint!("{t}");
+                println!("{}: invalid (see the problems above)\n", fc.file);
+                continue;
+            }
+            println!(
+                "{}: valid — {}",
+                fc.file,
+                fc.scheme.as_deref().unwrap_or("")
+            );
+            match (&fc.design, &fc.note) {
+                (Some(d), _) => println!("  design in the file: {d}"),
+                (None, Some(n)) => println!("  {n}"),
+                _ => {}
+            }
+            for w in &fc.warnings {
+                println!("  warning: {w}");
+            }
+            println!("{}", render::outcomes_table(fc));
+            print!("{}", render::outcome_notes(fc));
+            println!();
+        }
+        println!("{}", render::summary_table(&checks));
+        println!("{}", summary.line());
     }
-    Ok(worst)
+    Ok(if summary.invalid > 0 {
+        Outcome::BadInput
+    } else if summary.failed > 0 {
+        Outcome::Failed
+    } else {
+        Outcome::Ok
+    })
+}
+
+fn cmd_rules(a: cli::RulesArgs) -> anyhow::Result<Outcome> {
+    use tapplan::rules::render;
+    let rules = tryo!(rule_set(&a.rules));
+    if a.json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&render::RuleSetView::of(&rules))?
+        );
+        return Ok(Outcome::Ok);
+    }
+    match (&rules.file, &rules.district) {
+        (Some(f), Some(d)) => println!("Rules in force: defaults changed by {f} ({d})"),
+        (Some(f), None) => println!("Rules in force: defaults changed by {f}"),
+        _ => println!("Rules in force: the defaults"),
+    }
+    println!("{}", render::rules_table(&rules));
+    println!("Sources:");
+    print!("{}", render::references(&rules));
+    Ok(Outcome::Ok)
 }
 
 #[allow(dead_code)]
