@@ -563,7 +563,7 @@ pub fn operating_rules(s: &Scheme) -> Vec<String> {
         "Hourly time step over a 365-day year; solar time is taken as clock time.".to_string(),
         "The year starts from the state reached by first running the last 31 days of the year from the file's initial tank level (warm-up), so the start is not an arbitrary full or empty tank.".to_string(),
         format!(
-            "Level control: motor pumps start when the tank is below {:.0} % of its usable volume at the start of an hour and stop when it is full; when the tank fills part-way through an hour the pumps stop for the rest of that hour.",
+            "Level control: motor pumps start when the tank is below {:.0} % of its usable volume at the start of an hour and stop when it is full; when the tank fills part-way through an hour the pumps stop, and restart within the hour each time the level falls to the start level (with a start level of 100 % they hold the tank full while the drive lasts).",
             s.tank.pump_start_level_fraction * 100.0
         ),
         format!(
@@ -629,6 +629,10 @@ struct State<'a> {
     dry_run_hours: u32,
     capped_hours: u32,
     beyond_hours: u32,
+    /// Scratch per borehole for `step`: remaining safe yield, hand and motor flow, m³/s.
+    cap_buf: Vec<f64>,
+    hand_buf: Vec<f64>,
+    motor_buf: Vec<f64>,
 }
 
 impl<'a> State<'a> {
@@ -656,6 +660,9 @@ impl<'a> State<'a> {
             dry_run_hours: 0,
             capped_hours: 0,
             beyond_hours: 0,
+            cap_buf: Vec::with_capacity(nb),
+            hand_buf: Vec::with_capacity(nb),
+            motor_buf: Vec::with_capacity(nb),
         }
     }
 
@@ -693,13 +700,16 @@ impl<'a> State<'a> {
         let demand = self.daily_demand_m3 * m.shape[h];
         let nb = s.boreholes.len();
         // remaining safe yield this hour, m³/s
-        let mut cap: Vec<f64> = s
-            .boreholes
-            .iter()
-            .map(|b| b.safe_yield_m3_per_s())
-            .collect();
-        let mut bh_hand = vec![0.0; nb];
-        let mut bh_motor = vec![0.0; nb];
+        // per-borehole scratch, reused from hour to hour (no allocation in the loop)
+        let mut cap = std::mem::take(&mut self.cap_buf);
+        cap.clear();
+        cap.extend(s.boreholes.iter().map(|b| b.safe_yield_m3_per_s()));
+        let mut bh_hand = std::mem::take(&mut self.hand_buf);
+        bh_hand.clear();
+        bh_hand.resize(nb, 0.0);
+        let mut bh_motor = std::mem::take(&mut self.motor_buf);
+        bh_motor.clear();
+        bh_motor.resize(nb, 0.0);
 
         // hand pumps serve demand directly
         let mut hand_served = 0.0;
@@ -867,13 +877,39 @@ impl<'a> State<'a> {
                 let f = ((self.usable_m3 - v0) / net).clamp(0.0, 1.0);
                 run_fraction = f;
                 let rest = (ram - d) * (1.0 - f);
+                self.pumps_on = false;
                 if rest >= 0.0 {
                     overflow = rest;
                     v = self.usable_m3;
                 } else {
-                    v = self.usable_m3 + rest;
+                    // The level falls for the rest of the hour; each time it reaches the start
+                    // level the pumps restart and refill the tank (m³ and hours of this hour).
+                    let drain = d - ram;
+                    let left = 1.0 - f;
+                    let band = self.usable_m3 * (1.0 - s.tank.pump_start_level_fraction);
+                    if drain * left <= band {
+                        v = self.usable_m3 - drain * left;
+                    } else if band <= 1e-12 * self.usable_m3 {
+                        // start level 100 %: the pumps hold the tank full
+                        run_fraction += left * drain / motor;
+                        v = self.usable_m3;
+                        self.pumps_on = true;
+                    } else {
+                        let t_off = band / drain;
+                        let t_on = band / net;
+                        let cycles = (left / (t_off + t_on)).floor();
+                        let t = left - cycles * (t_off + t_on);
+                        run_fraction += cycles * t_on;
+                        if t <= t_off {
+                            v = self.usable_m3 - drain * t;
+                        } else {
+                            run_fraction += t - t_off;
+                            v = self.usable_m3 - band + net * (t - t_off);
+                            self.pumps_on = true;
+                        }
+                    }
+                    run_fraction = run_fraction.min(1.0);
                 }
-                self.pumps_on = false;
             } else {
                 v = v0 + net;
             }
@@ -905,6 +941,9 @@ impl<'a> State<'a> {
             self.q_hist[b][self.hist_pos] = mean_q;
             self.today[b] += mean_q * 3600.0;
         }
+        self.cap_buf = cap;
+        self.hand_buf = bh_hand;
+        self.motor_buf = bh_motor;
         self.hist_pos = (self.hist_pos + 1) % KERNEL_HOURS;
         if hour == 23 {
             let day = h / 24;
