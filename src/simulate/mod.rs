@@ -664,7 +664,7 @@ pub fn operating_rules(s: &Scheme) -> Vec<String> {
         "Hourly time step over a 365-day year; solar time is taken as clock time.".to_string(),
         "The year starts from the state reached by first running the last 31 days of the year from the file's initial tank level (warm-up), so the start is not an arbitrary full or empty tank.".to_string(),
         format!(
-            "Level control: motor pumps start when the tank is below {:.0} % of its usable volume at the start of an hour and stop when it is full; when the tank fills part-way through an hour the pumps stop for the rest of that hour.",
+            "Level control: motor pumps start when the tank is below {:.0} % of its usable volume at the start of an hour and stop when it is full; when the tank fills part-way through an hour the pumps stop, and restart within the hour each time the level falls to the start level (with a start level of 100 % they hold the tank full while the drive lasts).",
             s.tank.pump_start_level_fraction * 100.0
         ),
         format!(
@@ -977,13 +977,39 @@ impl<'a> State<'a> {
                 let f = ((self.usable_m3 - v0) / net).clamp(0.0, 1.0);
                 run_fraction = f;
                 let rest = (ram - d) * (1.0 - f);
+                self.pumps_on = false;
                 if rest >= 0.0 {
                     overflow = rest;
                     v = self.usable_m3;
                 } else {
-                    v = self.usable_m3 + rest;
+                    // The level falls for the rest of the hour; each time it reaches the start
+                    // level the pumps restart and refill the tank (m³ and hours of this hour).
+                    let drain = d - ram;
+                    let left = 1.0 - f;
+                    let band = self.usable_m3 * (1.0 - s.tank.pump_start_level_fraction);
+                    if drain * left <= band {
+                        v = self.usable_m3 - drain * left;
+                    } else if band <= 1e-12 * self.usable_m3 {
+                        // start level 100 %: the pumps hold the tank full
+                        run_fraction += left * drain / motor;
+                        v = self.usable_m3;
+                        self.pumps_on = true;
+                    } else {
+                        let t_off = band / drain;
+                        let t_on = band / net;
+                        let cycles = (left / (t_off + t_on)).floor();
+                        let t = left - cycles * (t_off + t_on);
+                        run_fraction += cycles * t_on;
+                        if t <= t_off {
+                            v = self.usable_m3 - drain * t;
+                        } else {
+                            run_fraction += t - t_off;
+                            v = self.usable_m3 - band + net * (t - t_off);
+                            self.pumps_on = true;
+                        }
+                    }
+                    run_fraction = run_fraction.min(1.0);
                 }
-                self.pumps_on = false;
             } else {
                 v = v0 + net;
             }
