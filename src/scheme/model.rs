@@ -140,8 +140,8 @@ pub struct ArrayRange {
     pub module_w: f64,
 }
 
-/// An allowed daily window of whole clock hours, `start_hour` ≤ h < `end_hour` (may wrap past
-/// midnight when end < start).
+/// An allowed daily window of whole clock hours, `start_hour` ≤ h < `end_hour` with
+/// `end_hour` up to 24 (`{0, 24}` is all day); it wraps past midnight when end < start.
 #[derive(Debug, Clone, Copy, Serialize)]
 pub struct Window {
     pub start_hour: u8,

@@ -173,7 +173,7 @@ impl Ck<'_> {
                 24.0,
                 "(clock hour 0–24, the hour the window ends)",
             );
-            if s == e % 24 {
+            if s == e {
                 self.err(
                     &f,
                     "start_hour equals end_hour; a window must cover at least one hour",
@@ -181,7 +181,7 @@ impl Ck<'_> {
             }
             out.push(Window {
                 start_hour: s as u8,
-                end_hour: (e % 24) as u8,
+                end_hour: e as u8,
             });
         }
         out

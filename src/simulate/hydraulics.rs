@@ -183,6 +183,26 @@ impl PumpTables {
         (k, x - k as f64)
     }
 
+    /// Total flow (m³/s) of `n` variable-speed units sharing `power_w` with past drawdown
+    /// s_past: the flow part of [`Self::point`] only (cheaper, for choosing how many run).
+    pub fn flow(&self, n: u32, power_w: f64, s_past_m: f64) -> f64 {
+        let Some(UnitsTable::Variable(v)) = self.by_units.get((n as usize).wrapping_sub(1)) else {
+            return self
+                .point(n, power_w, s_past_m)
+                .map_or(0.0, |p| p.flow_m3_per_s);
+        };
+        if power_w < self.start_power_w * n as f64 {
+            return 0.0;
+        }
+        let (k, f) = self.grid(s_past_m);
+        let a = v[k].as_ref().map_or(0.0, |t| t.flow_for_power(power_w));
+        if f <= 0.0 || self.step_m <= 0.0 {
+            return a;
+        }
+        let b = v[k + 1].as_ref().map_or(0.0, |t| t.flow_for_power(power_w));
+        a + f * (b - a)
+    }
+
     /// Total input power (W) at which `n` variable-speed units deliver total flow q with past
     /// drawdown s_past (the inverse of `point`), or None where the tables do not reach q.
     pub fn power_for_flow(&self, n: u32, q: f64, s_past_m: f64) -> Option<f64> {

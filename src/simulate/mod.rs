@@ -77,7 +77,12 @@ impl Design {
                 pumps.join(" + ")
             }
         );
-        if s.uses_solar() && self.array_w > 0.0 {
+        let solar_units = s
+            .pumps
+            .iter()
+            .zip(&self.units)
+            .any(|(p, n)| *n > 0 && p.drive == DriveKind::Solar);
+        if solar_units && self.array_w > 0.0 {
             t.push_str(&format!(", {:.2} kWp array", self.array_w / 1000.0));
         }
         t
@@ -420,6 +425,18 @@ impl Model {
         self.counter.load(std::sync::atomic::Ordering::Relaxed)
     }
 
+    /// Weather years a design needs: every year when a solar-driven unit is installed, else one
+    /// (its supply does not depend on the weather).
+    pub fn weather_years_for(&self, design: &Design) -> usize {
+        let solar = self
+            .scheme
+            .pumps
+            .iter()
+            .zip(&design.units)
+            .any(|(p, n)| *n > 0 && p.drive == DriveKind::Solar);
+        if solar { self.weather_years() } else { 1 }
+    }
+
     /// Number of weather years in the ensemble (1 when the supply does not depend on weather).
     pub fn weather_years(&self) -> usize {
         self.solar_years.len().max(1)
@@ -556,7 +573,7 @@ impl Model {
         demand_factor: f64,
     ) -> Ensemble {
         use rayon::prelude::*;
-        let years: Vec<YearResult> = (0..self.weather_years())
+        let years: Vec<YearResult> = (0..self.weather_years_for(design))
             .into_par_iter()
             .map(|w| self.run_year_scaled(design, year_offset, w, false, demand_factor))
             .collect();
@@ -884,13 +901,18 @@ impl<'a> State<'a> {
                 let variable = p.drive == DriveKind::Solar;
                 let mut best: Option<(u32, hydraulics::Point)> = None;
                 if variable {
+                    // how many units run: the count that delivers the most water
+                    let mut best_n = 0;
+                    let mut best_q = 0.0;
                     for n in 1..=n_inst {
-                        let pt = t.point(n, *pool, s_past);
-                        if let Some(pt) = pt.filter(|pt| {
-                            best.is_none_or(|(_, b)| pt.flow_m3_per_s > b.flow_m3_per_s)
-                        }) {
-                            best = Some((n, pt));
+                        let q = t.flow(n, *pool, s_past);
+                        if q > best_q {
+                            best_q = q;
+                            best_n = n;
                         }
+                    }
+                    if best_n > 0 {
+                        best = t.point(best_n, *pool, s_past).map(|pt| (best_n, pt));
                     }
                 } else {
                     for n in (1..=n_inst).rev() {

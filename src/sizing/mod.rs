@@ -10,9 +10,11 @@
 //! * A cost lower bound that needs no simulation (capital, replacements, salvage) prunes pump
 //!   sets and arrays that cannot beat the best design found so far.
 //! * A weather ensemble is judged by counting years that miss the target; a year stops as soon
-//!   as it has missed it, and an ensemble as soon as too many years have. During the bisection
-//!   only the hardest years (ranked once on the largest design) are run; the chosen design and
-//!   the next smaller tank are then confirmed on every year.
+//!   as it has missed it, and an ensemble as soon as the answer is certain (too many years have
+//!   missed, or too few are left to change it). Years run hardest first (ranked once on the
+//!   largest design), so failing designs are found quickly.
+//! * The chosen design is confirmed at the end: it passes, and the next smaller tank fails
+//!   (this also guards the monotonicity assumption).
 
 pub mod cost;
 
@@ -25,11 +27,6 @@ use crate::simulate::{
     meets_target, year_meets_target, years_allowed_to_fail,
 };
 use cost::{CostBreakdown, Operation};
-
-/// Judge every bisection step on the whole ensemble (exact) rather than on screening years.
-/// Screening was measured to mislead the search on the solar samples (the weather years that
-/// are hardest for one pump set are not those for another), so the search is exact.
-const EXACT_SEARCH: bool = true;
 
 /// Most designs a search may consider (pump sets × array sizes × tank sizes).
 pub const MAX_DESIGNS: usize = 2_000_000;
@@ -212,40 +209,20 @@ fn uses_solar(s: &Scheme, units: &[u32]) -> bool {
 
 /// The search context.
 struct Search<'a> {
-    s: &'a Scheme,
     m: &'a Model,
     tanks: Vec<f64>,
-    /// Weather years in screening order (hardest first) and how many to screen.
+    /// Weather years in the order they are run (hardest first).
     order: Vec<usize>,
-    screen: usize,
     horizon: u32,
     evaluated: usize,
 }
 
 impl Search<'_> {
-    /// Does the design meet the target in `year`? `full`: judged on every weather year (exact,
-    /// stopping as soon as the answer is certain). Otherwise a screen: the two weather years
-    /// ranked just at the judged percentile on the largest design must both meet it (a
-    /// provisional answer either way; the chosen design is confirmed in full).
-    fn passes(&mut self, d: &Design, year: u32, full: bool) -> bool {
+    /// Does the design meet the target in `year`, judged on every weather year (exact,
+    /// stopping as soon as the answer is certain)?
+    fn passes(&mut self, d: &Design, year: u32) -> bool {
         self.evaluated += 1;
-        if full {
-            return ensemble_passes(self.m, d, year, &self.order);
-        }
-        let sc = Scenario::default();
-        let abort = year_abort(self.m, year, &sc);
-        self.screen_years().iter().all(|w| {
-            year_meets_target(
-                self.s,
-                &self.m.run_year_with(d, year, *w, false, &sc, Some(abort)),
-            )
-        })
-    }
-
-    fn screen_years(&self) -> Vec<usize> {
-        let n = self.order.len();
-        let allowed = years_allowed_to_fail(self.s.targets.judged_on, n);
-        self.order[allowed.min(n - 1)..(allowed + self.screen).min(n)].to_vec()
+        ensemble_passes(self.m, d, year, &self.order)
     }
 
     /// Smallest tank index in `0..=hi` that passes, by bisection (shortfall assumed
@@ -256,17 +233,17 @@ impl Search<'_> {
             units: units.to_vec(),
             array_w,
         };
-        if !self.passes(&d(self.tanks[hi]), self.horizon, EXACT_SEARCH) {
+        if !self.passes(&d(self.tanks[hi]), self.horizon) {
             return None;
         }
         let (mut lo, mut hi) = (0usize, hi);
-        if self.passes(&d(self.tanks[0]), self.horizon, EXACT_SEARCH) {
+        if self.passes(&d(self.tanks[0]), self.horizon) {
             return Some(0);
         }
         // invariant: lo fails, hi passes
         while hi - lo > 1 {
             let mid = (lo + hi) / 2;
-            if self.passes(&d(self.tanks[mid]), self.horizon, EXACT_SEARCH) {
+            if self.passes(&d(self.tanks[mid]), self.horizon) {
                 hi = mid;
             } else {
                 lo = mid;
@@ -292,11 +269,11 @@ fn year_abort(m: &Model, year: u32, sc: &Scenario) -> Abort {
 pub fn ensemble_passes(m: &Model, d: &Design, year: u32, order: &[usize]) -> bool {
     let s = &m.scheme;
     let sc = Scenario::default();
-    let n = m.weather_years();
+    let n = m.weather_years_for(d);
     let allowed = years_allowed_to_fail(s.targets.judged_on, n);
     let abort = year_abort(m, year, &sc);
     let mut fails = 0;
-    for (k, w) in order.iter().take(n).enumerate() {
+    for (k, w) in order.iter().filter(|w| **w < n).take(n).enumerate() {
         let r = m.run_year_with(d, year, *w, false, &sc, Some(abort));
         if !year_meets_target(s, &r) {
             fails += 1;
@@ -311,16 +288,17 @@ pub fn ensemble_passes(m: &Model, d: &Design, year: u32, order: &[usize]) -> boo
     true
 }
 
-/// Confirms a screened design on every weather year: steps the tank up until it passes, then
-/// down while the next smaller tank passes too. Returns the design (None when even the largest
-/// tank fails), the next smaller tank (which fails), and whether the screen had misled.
+/// Confirms a design: steps the tank up until it passes, then down while the next smaller tank
+/// passes too (neither moves when shortfall is monotone in tank size, as assumed). Returns the
+/// design (None when even the largest tank fails), the next smaller tank (which fails), and
+/// whether a step was needed.
 fn confirm(search: &mut Search, mut d: Design) -> (Option<Design>, Option<f64>, bool) {
     let tanks = search.tanks.clone();
     let top = tanks.len() - 1;
     let h = search.horizon;
     let mut idx = tanks.iter().position(|t| *t == d.tank_m3).unwrap_or(0);
     let mut stepped = false;
-    while !search.passes(&d, h, true) {
+    while !search.passes(&d, h) {
         if idx == top {
             return (None, None, stepped);
         }
@@ -333,7 +311,7 @@ fn confirm(search: &mut Search, mut d: Design) -> (Option<Design>, Option<f64>, 
             tank_m3: tanks[idx - 1],
             ..d.clone()
         };
-        if !search.passes(&smaller, h, true) {
+        if !search.passes(&smaller, h) {
             break;
         }
         idx -= 1;
@@ -464,15 +442,10 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
             .then(a.cmp(b))
     });
     let n = m.weather_years();
-    let allowed = years_allowed_to_fail(s.targets.judged_on, n);
-    let _ = allowed;
-    let screen = if n == 1 { 1 } else { 2 };
     let mut search = Search {
-        s,
         m,
         tanks: tanks.clone(),
         order,
-        screen,
         horizon,
         evaluated: 0,
     };
@@ -536,7 +509,7 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
         }
     }
 
-    // ---- confirm the chosen design on every weather year; step up if the screen misled
+    // ---- confirm the chosen design
     let mut notes = Vec::new();
     let mut next_smaller = None;
     let chosen_design = match best {
@@ -544,7 +517,7 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
             let (d, smaller, stepped) = confirm(&mut search, d);
             next_smaller = smaller;
             if stepped {
-                notes.push("the screening years passed a tank that the full ensemble did not; the tank was stepped up until every weather year was judged".to_string());
+                notes.push("the tank found by bisection did not pass when re-checked (shortfall was not monotone in tank size here); it was stepped up until it did".to_string());
             }
             d
         }
@@ -795,7 +768,7 @@ fn sensitivity(m: &Model, d: &Design, median_w: usize) -> Result<Vec<Sensitivity
     let sens = &s.sensitivity;
     let mut rows = Vec::new();
     let row = |case: String, mm: &Model, sc: Scenario, fuel: f64| -> SensitivityRow {
-        let years: Vec<YearResult> = (0..mm.weather_years())
+        let years: Vec<YearResult> = (0..mm.weather_years_for(d))
             .map(|w| mm.run_year_with(d, h, w, false, &sc, None))
             .collect();
         let e = simulate::summarise(&mm.scheme, years);
