@@ -39,32 +39,39 @@ pub struct SchemeError {
 
 impl fmt::Display for SchemeError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let n = self.problems.len();
-        writeln!(
-            f,
-            "{}: {} problem{} found",
-            self.file,
-            n,
-            if n == 1 { "" } else { "s" }
-        )?;
-        for p in &self.problems {
-            match p.line {
-                Some(l) => {
-                    write!(f, "  {}:{}", self.file, l)?;
-                    if let Some(c) = p.column {
-                        write!(f, ":{c}")?;
-                    }
-                    write!(f, ": ")?;
-                }
-                None => write!(f, "  {}: ", self.file)?,
-            }
-            if !p.field.is_empty() {
-                write!(f, "{}: ", p.field)?;
-            }
-            writeln!(f, "{}", p.message)?;
-        }
-        Ok(())
+        write_problems(f, &self.file, &self.problems, "found")
     }
+}
+
+/// Writes a file's problems, one a line as `file:line:col: field: message`, under a heading
+/// `file: N problems <what>`.
+pub fn write_problems(
+    f: &mut fmt::Formatter<'_>,
+    file: &str,
+    problems: &[Problem],
+    what: &str,
+) -> fmt::Result {
+    let n = problems.len();
+    writeln!(
+        f,
+        "{file}: {n} problem{} {what}",
+        if n == 1 { "" } else { "s" }
+    )?;
+    for p in problems {
+        write!(f, "  {file}")?;
+        if let Some(l) = p.line {
+            write!(f, ":{l}")?;
+            if let Some(c) = p.column {
+                write!(f, ":{c}")?;
+            }
+        }
+        write!(f, ": ")?;
+        if !p.field.is_empty() {
+            write!(f, "{}: ", p.field)?;
+        }
+        writeln!(f, "{}", p.message)?;
+    }
+    Ok(())
 }
 
 impl std::error::Error for SchemeError {}

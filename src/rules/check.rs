@@ -8,11 +8,8 @@ use serde::Serialize;
 
 use super::{Counts, RuleOutcome, RuleSet, evaluate, evaluate_unsimulated};
 use crate::error::Problem;
-use crate::scheme::{DriveKind, Scheme};
-use crate::simulate::{
-    Design, DesignOverrides, HorizonRow, Model, RunReport, daily_demand, meets_target,
-    resolve_design, storage_days, summarise,
-};
+use crate::scheme::Scheme;
+use crate::simulate::{Design, DesignOverrides, Model, RunReport, resolve_design};
 
 /// The check of one scheme file.
 #[derive(Debug, Clone, Serialize)]
@@ -63,61 +60,10 @@ impl FileCheck {
 /// Runs a design for the rules: the base-year and horizon-year weather ensembles and the
 /// judged base year with its hourly series. The years between are not run (the rules do not
 /// use them): `horizon` holds only the base and horizon rows, and `first_failing_year` is the
-/// first of those two that misses the target. Everything else is as `simulate::run_report`.
-///
-/// A design with no solar-driven unit installed gives the same year in every weather year, so
-/// it is run for one weather year only (its ensembles then show one year, "weather-independent").
+/// first of those two that misses the target. A design with no solar-driven unit installed runs
+/// one weather year (its supply does not depend on the weather).
 pub fn check_run(m: &Model, design: &Design) -> RunReport {
-    let s = &m.scheme;
-    let weather_dependent = s
-        .pumps
-        .iter()
-        .zip(&design.units)
-        .any(|(p, n)| *n > 0 && p.drive == DriveKind::Solar);
-    let (first, last, year) = if weather_dependent {
-        let first = m.run_ensemble(design, 0);
-        let last = m.run_ensemble(design, s.info.horizon_years);
-        let year = m.run_year(design, 0, first.representative, true);
-        (first, last, year)
-    } else {
-        let year = m.run_year(design, 0, 0, true);
-        let mut y0 = year.clone();
-        y0.hourly = None;
-        let first = summarise(s, vec![y0]);
-        let last = summarise(s, vec![m.run_year(design, s.info.horizon_years, 0, false)]);
-        (first, last, year)
-    };
-    let row = |e: &crate::simulate::Ensemble, offset: u32| {
-        let dd = daily_demand(s, offset);
-        HorizonRow {
-            year: e.year,
-            population: dd.population,
-            demand_m3_per_day: dd.supplied_m3_per_day,
-            shortfall_hours: e.judged_shortfall_hours,
-            demand_met_fraction: e.judged_demand_met_fraction,
-            meets_target: meets_target(s, e),
-        }
-    };
-    let mut horizon = vec![row(&first, 0)];
-    if s.info.horizon_years > 0 {
-        horizon.push(row(&last, s.info.horizon_years));
-    }
-    let first_failing_year = horizon.iter().find(|r| !r.meets_target).map(|r| r.year);
-    let dd = daily_demand(s, 0);
-    RunReport {
-        scheme: s.info.name.clone(),
-        design_text: design.describe(s),
-        design: design.clone(),
-        rules: m.rules.clone(),
-        target_met_in_horizon_year: meets_target(s, &last),
-        first_year: first,
-        horizon_year: last,
-        year,
-        horizon,
-        first_failing_year,
-        storage_days_of_average_demand: storage_days(s, design.tank_m3, &dd),
-        warnings: s.warnings.clone(),
-    }
+    crate::simulate::run_report_with(m, design, crate::simulate::HorizonYears::Ends)
 }
 
 /// Checks one scheme already loaded: simulates the file's own design when it states one

@@ -40,31 +40,7 @@ pub struct RulesFileError {
 
 impl fmt::Display for RulesFileError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let n = self.problems.len();
-        writeln!(
-            f,
-            "{}: {} problem{} in the rules file",
-            self.file,
-            n,
-            if n == 1 { "" } else { "s" }
-        )?;
-        for p in &self.problems {
-            match p.line {
-                Some(l) => {
-                    write!(f, "  {}:{}", self.file, l)?;
-                    if let Some(c) = p.column {
-                        write!(f, ":{c}")?;
-                    }
-                    write!(f, ": ")?;
-                }
-                None => write!(f, "  {}: ", self.file)?,
-            }
-            if !p.field.is_empty() {
-                write!(f, "{}: ", p.field)?;
-            }
-            writeln!(f, "{}", p.message)?;
-        }
-        Ok(())
+        crate::error::write_problems(f, &self.file, &self.problems, "in the rules file")
     }
 }
 

@@ -585,19 +585,21 @@ impl Model {
         use rayon::prelude::*;
         (0..=self.scheme.info.horizon_years)
             .into_par_iter()
-            .map(|y| {
-                let e = self.run_ensemble(design, y);
-                let dd = daily_demand(&self.scheme, y);
-                HorizonRow {
-                    year: e.year,
-                    population: dd.population,
-                    demand_m3_per_day: dd.supplied_m3_per_day,
-                    shortfall_hours: e.judged_shortfall_hours,
-                    demand_met_fraction: e.judged_demand_met_fraction,
-                    meets_target: meets_target(&self.scheme, &e),
-                }
-            })
+            .map(|y| horizon_row(&self.scheme, &self.run_ensemble(design, y), y))
             .collect()
+    }
+}
+
+/// The horizon-table row of an ensemble run `year_offset` years after the base year.
+pub fn horizon_row(s: &Scheme, e: &Ensemble, year_offset: u32) -> HorizonRow {
+    let dd = daily_demand(s, year_offset);
+    HorizonRow {
+        year: e.year,
+        population: dd.population,
+        demand_m3_per_day: dd.supplied_m3_per_day,
+        shortfall_hours: e.judged_shortfall_hours,
+        demand_met_fraction: e.judged_demand_met_fraction,
+        meets_target: meets_target(s, e),
     }
 }
 
@@ -1247,13 +1249,32 @@ pub struct RunReport {
     pub warnings: Vec<String>,
 }
 
+/// Which years the horizon table of a report holds.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum HorizonYears {
+    /// Every year from the base year to the horizon.
+    Every,
+    /// Only the base and the horizon year (for quick checks of many schemes).
+    Ends,
+}
+
 /// Runs a design over the base year (with hourly series), the weather ensemble and horizon.
 pub fn run_report(m: &Model, design: &Design) -> RunReport {
+    run_report_with(m, design, HorizonYears::Every)
+}
+
+/// As `run_report`, with the horizon table over `years`.
+pub fn run_report_with(m: &Model, design: &Design, years: HorizonYears) -> RunReport {
     let s = &m.scheme;
+    let h = s.info.horizon_years;
     let mut first = m.run_ensemble(design, 0);
-    let last = m.run_ensemble(design, s.info.horizon_years);
+    let last = m.run_ensemble(design, h);
     let year = m.run_year(design, 0, first.representative, true);
-    let horizon = m.horizon(design);
+    let horizon = match years {
+        HorizonYears::Every => m.horizon(design),
+        HorizonYears::Ends if h == 0 => vec![horizon_row(s, &first, 0)],
+        HorizonYears::Ends => vec![horizon_row(s, &first, 0), horizon_row(s, &last, h)],
+    };
     let first_failing_year = horizon.iter().find(|r| !r.meets_target).map(|r| r.year);
     let dd = daily_demand(s, 0);
     for y in first.years.iter_mut() {
