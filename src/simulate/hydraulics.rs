@@ -276,6 +276,8 @@ impl PumpTables {
 #[derive(Debug, Clone)]
 pub struct TheisKernel {
     pub k: Vec<f64>,
+    /// k_j for j = KERNEL_HOURS−1 down to 1 (oldest hour first), for the hourly sum.
+    pub k_rev: Vec<f64>,
     pub tail: f64,
 }
 
@@ -306,7 +308,8 @@ impl TheisKernel {
             k.push(v * c);
         }
         let tail = (w(TAIL_DAYS as f64 * 24.0) - w(KERNEL_HOURS as f64 - 0.5)) * c;
-        TheisKernel { k, tail }
+        let k_rev = k[1..].iter().rev().copied().collect();
+        TheisKernel { k, k_rev, tail }
     }
 }
 

@@ -736,7 +736,9 @@ struct State<'a> {
     v: f64,
     pumps_on: bool,
     /// Per borehole: hourly flow history ring (m³/s), daily sums ring (m³), counters.
-    q_hist: Vec<[f64; KERNEL_HOURS]>,
+    /// Doubled ring (slot i and i + KERNEL_HOURS hold the same hour) so the last hours are
+    /// one contiguous slice.
+    q_hist: Vec<[f64; 2 * KERNEL_HOURS]>,
     day_sums: Vec<[f64; TAIL_DAYS]>,
     /// Running sum of `day_sums` per borehole.
     day_total: Vec<f64>,
@@ -770,7 +772,7 @@ impl<'a> State<'a> {
             usable_m3: usable,
             v,
             pumps_on: v < usable * m.scheme.tank.pump_start_level_fraction,
-            q_hist: vec![[0.0; KERNEL_HOURS]; nb],
+            q_hist: vec![[0.0; 2 * KERNEL_HOURS]; nb],
             day_sums: vec![[0.0; TAIL_DAYS]; nb],
             day_total: vec![0.0; nb],
             today: vec![0.0; nb],
@@ -808,12 +810,9 @@ impl<'a> State<'a> {
         let Some(k) = &m.kernels[b] else {
             return 0.0;
         };
-        let hist = &self.q_hist[b];
-        let mut s = 0.0;
-        for j in 1..KERNEL_HOURS {
-            let idx = (self.hist_pos + KERNEL_HOURS - j) % KERNEL_HOURS;
-            s += hist[idx] * k.k[j];
-        }
+        // hours 23 … 1 ago, oldest first, against the kernel in the same order
+        let past = &self.q_hist[b][self.hist_pos + 1..self.hist_pos + KERNEL_HOURS];
+        let s: f64 = past.iter().zip(&k.k_rev).map(|(q, c)| q * c).sum();
         let mean_q = self.day_total[b] / (TAIL_DAYS as f64 * 86_400.0);
         s + mean_q * k.tail
     }
@@ -890,6 +889,14 @@ impl<'a> State<'a> {
                 }
                 let b = p.source_index;
                 let bore = &s.boreholes[b];
+                let pool_now = match p.drive {
+                    DriveKind::Solar => pool_solar,
+                    DriveKind::Generator => pool_gen,
+                    _ => pool_grid,
+                };
+                if pool_now <= 0.0 || pool_now < t.start_power_w {
+                    continue; // no drive power for this type this hour
+                }
                 let s_past = self.past_drawdown(m, b);
                 if s_past > t.max_offset_m {
                     self.dry_run_hours += 1;
@@ -1063,6 +1070,7 @@ impl<'a> State<'a> {
             // motor pumps ran only `run_fraction` of the hour
             let mean_q = bh_hand[b] + bh_motor[b] * run_fraction;
             self.q_hist[b][self.hist_pos] = mean_q;
+            self.q_hist[b][self.hist_pos + KERNEL_HOURS] = mean_q;
             self.today[b] += mean_q * 3600.0;
         }
         self.hist_pos = (self.hist_pos + 1) % KERNEL_HOURS;
