@@ -515,17 +515,23 @@ fn page_one(inp: &PlanInputs, b: &mut Vec<Block>) {
     }
     kf.push(("Target in the horizon year".into(), verdict));
     kf.push((
-        format!("First year {}", r.first_year.year),
         format!(
-            "{:.0} shortfall h · {} % met",
+            "First year {}: shortfall hours, demand met",
+            r.first_year.year
+        ),
+        format!(
+            "{:.0} h short · {} % met",
             r.first_year.judged_shortfall_hours,
             pct(r.first_year.judged_demand_met_fraction)
         ),
     ));
     kf.push((
-        format!("Horizon year {}", r.horizon_year.year),
         format!(
-            "{:.0} shortfall h · {} % met",
+            "Horizon year {}: shortfall hours, demand met",
+            r.horizon_year.year
+        ),
+        format!(
+            "{:.0} h short · {} % met",
             r.horizon_year.judged_shortfall_hours,
             pct(r.horizon_year.judged_demand_met_fraction)
         ),
@@ -958,6 +964,11 @@ fn source_section(inp: &PlanInputs, b: &mut Vec<Block>) {
             continue;
         };
         any_curve = true;
+        let top_head = c
+            .pump_curve
+            .iter()
+            .map(|x| x.1)
+            .fold(c.static_lift_m, f64::max);
         let to_h = |v: &[(f64, f64)]| -> Vec<(f64, f64)> {
             v.iter().map(|(q, h)| (q * 3600.0, *h)).collect()
         };
@@ -1017,7 +1028,8 @@ fn source_section(inp: &PlanInputs, b: &mut Vec<Block>) {
             y_label: "head (m)".into(),
             series: ser,
             x_range: None,
-            y_range: None,
+            // the pump's range of head, with room above: the system curve beyond is clipped
+            y_range: Some((0.0, top_head * 1.3)),
         })));
         b.push(para(format!(
             "The static lift from the rest water level to the tank inlet is {:.1} m. The inlet is at the top of the tank, so the tank level does not change the static head; what moves the system curve during the year is the aquifer drawdown left by earlier pumping (Theis superposition). The dashed curve has none; the dotted one adds the {:.1} m that, at full speed, puts the pumping level at the deepest level simulated in {} ({}). The operating point is where the pump curve crosses the system curve; {}",
@@ -1394,6 +1406,7 @@ fn choice_section(inp: &PlanInputs, b: &mut Vec<Block>) {
                 vec![
                     (c.judged_shortfall_hours, lo),
                     (c.judged_shortfall_hours, c.cost.npv),
+                    (0.0, c.cost.npv),
                 ],
                 LineStyle::Dotted,
                 0.2,
