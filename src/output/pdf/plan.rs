@@ -594,8 +594,13 @@ fn page_one(inp: &PlanInputs, b: &mut Vec<Block>) {
     ));
     b.push(typical_day_chart(inp));
     b.push(para(format!(
-        "The chart averages each clock hour over the 365 days of the horizon year {} in its judged weather year ({}), the year the design is judged on. Single days swing further than this average.",
-        inp.horizon_detail.year, inp.horizon_detail.weather
+        "The chart averages each clock hour over the 365 days of the horizon year {}, {}, the year the design is judged on. Single days swing further than this average.",
+        inp.horizon_detail.year,
+        if inp.plan.weather_years > 1 {
+            format!("in its judged weather year ({})", inp.horizon_detail.weather)
+        } else {
+            "one simulated year (the supply does not depend on the weather)".to_string()
+        }
     )));
 }
 
@@ -1095,10 +1100,17 @@ fn year_section(inp: &PlanInputs, b: &mut Vec<Block>) {
     let y1 = inp.horizon_detail;
     let s = &inp.model.scheme;
     b.push(heading(1, "The year"));
-    b.push(para(format!(
-        "Hour by hour over the first year {} (weather: {}) and the horizon year {} (weather: {}), each the judged year of its ensemble. A shortfall hour is an hour in which the tank ran dry and some demand went unmet.",
-        y0.year, y0.weather, y1.year, y1.weather
-    )));
+    b.push(para(if inp.plan.weather_years > 1 {
+        format!(
+            "Hour by hour over the first year {} (weather: {}) and the horizon year {} (weather: {}), each the judged year of its ensemble. A shortfall hour is an hour in which the tank ran dry and some demand went unmet.",
+            y0.year, y0.weather, y1.year, y1.weather
+        )
+    } else {
+        format!(
+            "Hour by hour over the first year {} and the horizon year {} (the supply does not depend on the weather, so one year each is simulated). A shortfall hour is an hour in which the tank ran dry and some demand went unmet.",
+            y0.year, y1.year
+        )
+    }));
     let mut cats = months3();
     cats.truncate(12);
     b.push(Block::Chart(Chart::Bar(BarChart {
