@@ -46,7 +46,7 @@ impl Model {
     /// enter it. `deepest_level_m` (depth below ground of the deepest pumping water level of a
     /// year) sets s_past for the second curve: the s_past at which the rated-speed operating
     /// point's level, static + s_past + (a₀ + B)Q + CQ², equals it (bisection; the level rises
-    /// monotonically with s_past because the flow then falls). None for pumps without a curve
+    /// with s_past, the fall of the flow taking back only part of each step). None for pumps without a curve
     /// or with no units. `samples` (≥ 2) points per line.
     pub fn pump_system_curves(
         &self,
@@ -177,7 +177,10 @@ mod tests {
         let level0 = 38.0 + t.system.well_drawdown_m(q0);
         let want = level0 + 5.0;
         let c = m.pump_system_curves(0, 1, Some(want), 5).unwrap();
-        assert!(c.past_drawdown_m > 0.0 && c.past_drawdown_m < 5.0 + 1e-6);
+        // The flow falls as the lift grows, taking back part of the current-hour drawdown,
+        // so more than 5 m of past drawdown is needed to lower the level by 5 m.
+        assert!(c.past_drawdown_m >= 5.0 - 1e-6, "{}", c.past_drawdown_m);
+        assert!(c.past_drawdown_m < 10.0, "{}", c.past_drawdown_m);
         let (q, _) = c.operating_with_past.unwrap();
         assert!(q < q0, "more lift, less flow");
         assert_relative_eq!(

@@ -564,14 +564,19 @@ fn page_one(inp: &PlanInputs, b: &mut Vec<Block>) {
             pct(c.judged_demand_met_fraction),
             judged
         ),
-        (None, Some(u)) => format!(
-            "Target: {}. {} The best reachable, {}, gives {:.0} shortfall hours and {} % of demand met in the horizon year ({}). What limits it: {}.",
+        (None, Some(u)) if inp.overrides.is_some() => format!(
+            "Target: {}. The given design, {}, does NOT meet it: {:.0} shortfall hours and {} % of demand met in the horizon year ({}). What limits it: {}.",
             p.target_text,
-            if inp.overrides.is_some() {
-                "The given design does NOT meet it."
-            } else {
-                "NO DESIGN in the searched ranges meets it."
-            },
+            u.best_design,
+            u.best_shortfall_hours,
+            pct(u.best_demand_met_fraction),
+            judged,
+            u.limited_by
+        ),
+        (None, Some(u)) => format!(
+            "Target: {}. {} The best reachable design, {}, gives {:.0} shortfall hours and {} % of demand met in the horizon year ({}). What limits it: {}.",
+            p.target_text,
+            "NO DESIGN in the searched ranges meets it.",
             u.best_design,
             u.best_shortfall_hours,
             pct(u.best_demand_met_fraction),
