@@ -67,6 +67,39 @@ pub enum Command {
         after_help = help_with_caution!("Example:\n  tapplan size samples/kessa-ridge-solar.yaml\n  tapplan size samples/kessa-ridge-solar.yaml --json plan.json")
     )]
     Size(SizeArgs),
+    /// Size the scheme (or evaluate a given design) and write the plan as an A4 PDF
+    #[command(
+        after_help = "Exit codes: 0 the target is met, 1 no design meets it (the PDF is still written and says so), 2 bad input.\n\nExample:\n  tapplan plan samples/kessa-ridge-solar.yaml -o kessa-plan.pdf\n  tapplan plan samples/kessa-ridge-solar.yaml -o fixed.pdf --tank-m3 120 --pumps SolarSub-9=2 --array-kwp 12"
+    )]
+    Plan(PlanArgs),
+    /// Re-run a plan PDF from the scheme file embedded in it and compare figures and bytes
+    #[command(
+        after_help = "Exit codes: 0 figures and bytes match, 1 they differ, 2 the PDF has no embedded scheme or cannot be read.\n\nExample:\n  tapplan verify kessa-plan.pdf\n  tapplan verify kessa-plan.pdf --extract kessa.yaml"
+    )]
+    Verify(VerifyArgs),
+}
+
+#[derive(Debug, Args)]
+pub struct PlanArgs {
+    /// Scheme file
+    pub file: PathBuf,
+    /// PDF file to write (`-` for standard output)
+    #[arg(long, short = 'o', value_name = "PDF")]
+    pub output: PathBuf,
+    #[command(flatten)]
+    pub design: DesignArgs,
+}
+
+#[derive(Debug, Args)]
+pub struct VerifyArgs {
+    /// Plan PDF written by `tapplan plan`
+    pub pdf: PathBuf,
+    /// Write the embedded scheme file to this path instead of verifying
+    #[arg(long, value_name = "FILE")]
+    pub extract: Option<PathBuf>,
+    /// With --extract: overwrite the file if it exists
+    #[arg(long)]
+    pub force: bool,
 }
 
 #[derive(Debug, Args)]

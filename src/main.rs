@@ -55,6 +55,8 @@ fn run(cli: Cli) -> anyhow::Result<Outcome> {
         Command::Rules(a) => cmd_rules(a),
         Command::Run(a) => cmd_run(a),
         Command::Size(a) => cmd_size(a),
+        Command::Plan(a) => cmd_plan(a),
+        Command::Verify(a) => cmd_verify(a),
     }
 }
 
@@ -392,4 +394,272 @@ fn cmd_rules(a: cli::RulesArgs) -> anyhow::Result<Outcome> {
 #[allow(dead_code)]
 fn label(p: &Path) -> String {
     p.display().to_string()
+}
+
+/// Checks that the output's folder exists, so the error names the folder rather than a
+/// temporary file.
+fn output_folder_ok(out: &Path) -> bool {
+    if out.as_os_str() == "-" {
+        return true;
+    }
+    match out.parent() {
+        Some(p) if !p.as_os_str().is_empty() && !p.is_dir() => {
+            eprintln!(
+                "error: cannot write '{}': the folder '{}' does not exist; create it or choose another output path",
+                out.display(),
+                p.display()
+            );
+            false
+        }
+        _ => true,
+    }
+}
+
+fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
+    use tapplan::output::pdf::plan;
+    if !output_folder_ok(&a.output) {
+        return Ok(Outcome::BadInput);
+    }
+    let loaded = tryo!(load(&a.file));
+    let bytes = match std::fs::read(&a.file) {
+        Ok(b) => b,
+        Err(e) => {
+            eprintln!("error: cannot read '{}': {e}", a.file.display());
+            return Ok(Outcome::BadInput);
+        }
+    };
+    let given =
+        !a.design.pumps.is_empty() || a.design.tank_m3.is_some() || a.design.array_kwp.is_some();
+    let o = tryo!(overrides(&a.design));
+    let name = a
+        .file
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "scheme.yaml".into());
+    let run = {
+        let _p = Progress::start(format!("planning {}", loaded.scheme.info.name));
+        // The proposal checks are not wired in yet: the plan prints "checks not run".
+        match plan::run_plan(
+            &loaded,
+            &bytes,
+            &name,
+            given.then_some(&o),
+            &tapplan::rules::RuleSet::defaults(),
+        ) {
+            Ok(r) => r,
+            Err(e) => {
+                eprintln!("{}: {e}", a.file.display());
+                return Ok(Outcome::BadInput);
+            }
+        }
+    };
+    let inputs: [&Path; 1] = [&a.file];
+    if let Err(e) = write_output(&a.output, &run.pdf, &inputs) {
+        eprintln!("error: {e}");
+        return Ok(Outcome::BadInput);
+    }
+    let f = &run.figures;
+    let line = format!(
+        "{}: {}; shortfall {:.0} h in the first year, {:.0} h in the horizon year; target {}",
+        f.scheme,
+        f.design,
+        f.shortfall_hours_first_year,
+        f.shortfall_hours_horizon_year,
+        if run.target_met { "met" } else { "NOT met" }
+    );
+    if a.output.as_os_str() == "-" {
+        eprintln!("{line}");
+    } else {
+        println!("{line}");
+        println!("wrote '{}' ({} bytes)", a.output.display(), run.pdf.len());
+    }
+    Ok(if run.target_met {
+        Outcome::Ok
+    } else {
+        Outcome::Failed
+    })
+}
+
+/// A folder under the system temporary folder, removed on drop.
+struct TempFolder(std::path::PathBuf);
+
+impl TempFolder {
+    fn new() -> std::io::Result<TempFolder> {
+        let base = std::env::temp_dir();
+        for n in 0..1000u32 {
+            let p = base.join(format!("tapplan-verify-{}-{n}", std::process::id()));
+            match std::fs::create_dir(&p) {
+                Ok(()) => return Ok(TempFolder(p)),
+                Err(e) if e.kind() == std::io::ErrorKind::AlreadyExists => continue,
+                Err(e) => return Err(e),
+            }
+        }
+        Err(std::io::Error::other("could not create a temporary folder"))
+    }
+}
+
+impl Drop for TempFolder {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_dir_all(&self.0);
+    }
+}
+
+fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
+    use tapplan::output::pdf::{extract_attachment, plan};
+    let label = a.pdf.display().to_string();
+    let pdf = match std::fs::read(&a.pdf) {
+        Ok(b) => b,
+        Err(e) => {
+            eprintln!("error: cannot read '{label}': {e}");
+            return Ok(Outcome::BadInput);
+        }
+    };
+    let get = |name: &str| -> Result<Option<Vec<u8>>, Outcome> {
+        extract_attachment(&pdf, name).map_err(|e| {
+            eprintln!("error: '{label}' cannot be read as a plan PDF: {e}");
+            Outcome::BadInput
+        })
+    };
+    let Some(scheme_bytes) = tryo!(get(plan::SCHEME_ATTACHMENT)) else {
+        eprintln!(
+            "error: '{label}' has no embedded scheme file ({}); only plans written by `tapplan plan` can be verified",
+            plan::SCHEME_ATTACHMENT
+        );
+        return Ok(Outcome::BadInput);
+    };
+    if let Some(out) = &a.extract {
+        if out.exists() && !a.force {
+            eprintln!(
+                "error: '{}' already exists; choose another name or add --force to overwrite it",
+                out.display()
+            );
+            return Ok(Outcome::BadInput);
+        }
+        if !output_folder_ok(out) {
+            return Ok(Outcome::BadInput);
+        }
+        let inputs: [&Path; 1] = [&a.pdf];
+        if let Err(e) = write_output(out, &scheme_bytes, &inputs) {
+            eprintln!("error: {e}");
+            return Ok(Outcome::BadInput);
+        }
+        if out.as_os_str() != "-" {
+            println!(
+                "wrote the embedded scheme file to '{}' ({} bytes)",
+                out.display(),
+                scheme_bytes.len()
+            );
+        }
+        return Ok(Outcome::Ok);
+    }
+    let Some(fig_bytes) = tryo!(get(plan::FIGURES_ATTACHMENT)) else {
+        eprintln!(
+            "error: '{label}' has no embedded key figures ({}); it was not written by `tapplan plan`",
+            plan::FIGURES_ATTACHMENT
+        );
+        return Ok(Outcome::BadInput);
+    };
+    let stored: plan::Figures = match serde_json::from_slice(&fig_bytes) {
+        Ok(f) => f,
+        Err(e) => {
+            eprintln!(
+                "error: the key figures embedded in '{label}' cannot be read ({e}); the PDF was altered or written by another version"
+            );
+            return Ok(Outcome::BadInput);
+        }
+    };
+    let dir = match TempFolder::new() {
+        Ok(d) => d,
+        Err(e) => {
+            eprintln!("error: cannot create a temporary folder: {e}");
+            return Ok(Outcome::BadInput);
+        }
+    };
+    if let Some(w) = &stored.weather_file {
+        let rel = Path::new(w);
+        let safe = rel.components().all(|c| {
+            matches!(
+                c,
+                std::path::Component::Normal(_) | std::path::Component::CurDir
+            )
+        });
+        if !safe {
+            eprintln!(
+                "error: the plan names the weather file '{w}' outside the scheme's folder; put the weather file beside the scheme file (or below it) and plan again to make the PDF verifiable"
+            );
+            return Ok(Outcome::BadInput);
+        }
+        let Some(bytes) = tryo!(get(&plan::weather_attachment_name(w))) else {
+            eprintln!("error: '{label}' names the weather file '{w}' but does not embed it");
+            return Ok(Outcome::BadInput);
+        };
+        let target = dir.0.join(rel);
+        let written = target
+            .parent()
+            .map_or(Ok(()), std::fs::create_dir_all)
+            .and_then(|_| std::fs::write(&target, &bytes));
+        if let Err(e) = written {
+            eprintln!("error: cannot write the embedded weather file to a temporary folder: {e}");
+            return Ok(Outcome::BadInput);
+        }
+    }
+    let scheme_label = format!("{label} (embedded {})", stored.scheme_file_name);
+    let loaded = match tapplan::scheme::load_bytes(&scheme_bytes, &scheme_label, &dir.0) {
+        Ok(l) => l,
+        Err(e) => {
+            eprint!("{e}");
+            return Ok(Outcome::BadInput);
+        }
+    };
+    let o = stored
+        .overrides
+        .as_ref()
+        .map(|r| tapplan::simulate::DesignOverrides {
+            tank_m3: r.tank_m3,
+            pumps: r.pumps.clone(),
+            array_kwp: r.array_kwp,
+        });
+    let run = {
+        let _p = Progress::start(format!("re-planning {}", loaded.scheme.info.name));
+        match plan::run_plan(
+            &loaded,
+            &scheme_bytes,
+            &stored.scheme_file_name,
+            o.as_ref(),
+            &tapplan::rules::RuleSet::defaults(),
+        ) {
+            Ok(r) => r,
+            Err(e) => {
+                eprintln!("{scheme_label}: {e}");
+                return Ok(Outcome::BadInput);
+            }
+        }
+    };
+    let diffs = stored.differences(&run.figures);
+    let same_bytes = run.pdf == pdf;
+    if diffs.is_empty() {
+        println!("figures match: {}", stored.design);
+    } else {
+        println!("figures DIFFER ({}):", diffs.len());
+        for d in &diffs {
+            println!("  {d}");
+        }
+    }
+    if same_bytes {
+        println!(
+            "bytes match: the re-run gives this PDF exactly ({} bytes)",
+            pdf.len()
+        );
+    } else {
+        println!(
+            "bytes DIFFER: the re-run gives {} bytes, the file has {}",
+            run.pdf.len(),
+            pdf.len()
+        );
+    }
+    Ok(if diffs.is_empty() && same_bytes {
+        Outcome::Ok
+    } else {
+        Outcome::Failed
+    })
 }

@@ -7,6 +7,7 @@
 //! the base year to the horizon. The operating rules the engine follows are listed in
 //! `Model::rules` and shown with every result: they move shortfall hours a great deal.
 
+pub mod curves;
 pub mod hydraulics;
 pub mod inputs;
 
@@ -16,6 +17,7 @@ use crate::error::Error;
 use crate::physics::drives;
 use crate::scheme::{DriveKind, JudgedOn, PumpKind, Scheme, WeatherMode};
 use crate::weather::{HOURS_IN_YEAR, month_of_day};
+pub use curves::PumpSystemCurves;
 use hydraulics::{KERNEL_HOURS, PumpTables, SystemCurve, TAIL_DAYS, TheisKernel};
 pub use inputs::{DailyDemand, SolarYear, daily_demand};
 

@@ -545,7 +545,7 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
         evaluated(m, d, &report.horizon_year, c, report.first_failing_year)
     });
     let unreachable = if chosen.is_none() {
-        Some(diagnose(m, &biggest, &report))
+        Some(diagnose(m, &biggest, &report, "with the largest design"))
     } else {
         None
     };
@@ -612,8 +612,51 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
     })
 }
 
+/// Evaluates one given design (no search) into a `Plan`: `chosen` is the design when it meets
+/// the target in the horizon year, otherwise `unreachable` says what limits it. The design
+/// itself is the only entry of `alternatives` (so its cost is reported either way); the
+/// sensitivity table is computed around it; front, staging and the mean-day comparison need a
+/// search and are left empty, with a note.
+pub fn evaluate_fixed(m: &Model, d: &Design) -> Result<Plan, Error> {
+    let s = &m.scheme;
+    let report = simulate::run_report(m, d);
+    let median_w = median_weather(&report.horizon_year);
+    let c = cost_of(m, d, &Scenario::default(), median_w, 1.0);
+    let ev = evaluated(m, d, &report.horizon_year, c, report.first_failing_year);
+    let chosen = ev.meets_target.then(|| ev.clone());
+    let unreachable = (!ev.meets_target).then(|| diagnose(m, d, &report, "with the given design"));
+    let sensitivity = sensitivity(m, d, median_w)?;
+    Ok(Plan {
+        scheme: s.info.name.clone(),
+        target_text: target_text(s),
+        judged_on: s.targets.judged_on,
+        weather_years: m.weather_years(),
+        chosen,
+        report,
+        alternatives: vec![ev],
+        front: Vec::new(),
+        staging: Vec::new(),
+        sensitivity,
+        unreachable,
+        mean_days: None,
+        next_smaller_tank_m3: None,
+        stats: SearchStats {
+            pump_sets: 1,
+            array_sizes: 1,
+            tank_sizes: 1,
+            designs_in_ranges: 1,
+            designs_evaluated: 1,
+            year_simulations: m.simulations_run(),
+        },
+        notes: vec![format!(
+            "fixed design given on the command line ({}); no search was run, so the ranked alternatives, the cost–reliability front, the staging and the mean-day comparison are not computed",
+            d.describe(s)
+        )],
+    })
+}
+
 /// What limits the best reachable design.
-fn diagnose(m: &Model, d: &Design, r: &RunReport) -> Unreachable {
+fn diagnose(m: &Model, d: &Design, r: &RunReport, which: &str) -> Unreachable {
     let s = &m.scheme;
     let y: &YearResult = &r.horizon_year.years[r
         .horizon_year
@@ -643,7 +686,7 @@ fn diagnose(m: &Model, d: &Design, r: &RunReport) -> Unreachable {
         )
     } else if s.uses_solar() || s.generator.is_some() || s.grid.is_some() {
         format!(
-            "energy or pump capacity: with the largest design the pumps ran {:.0} hours and lifted {:.0} m³ against a demand of {:.0} m³; more array, more generator hours or more pump units are needed",
+            "energy or pump capacity: {which} the pumps ran {:.0} hours and lifted {:.0} m³ against a demand of {:.0} m³; more array, more generator hours or more pump units are needed",
             y.annual.pump_run_hours, y.annual.pumped_m3, demand
         )
     } else {

@@ -7,6 +7,7 @@ pub mod attach;
 pub mod content;
 pub mod fonts;
 pub mod layout;
+pub mod plan;
 pub mod render;
 
 pub use attach::{attach_files, extract_attachment, list_attachments};

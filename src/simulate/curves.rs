@@ -1,0 +1,200 @@
+//! Chart data of the pump–system match: the rated-speed curve of N units in parallel, the
+//! system curve of the borehole and rising main with and without drawdown left by earlier
+//! pumping, and their intersections. Pure reads of the model's prepared tables; the hourly
+//! loop does not use this module.
+
+use serde::Serialize;
+
+use super::Model;
+use crate::physics::pumps;
+
+/// Pump curve, system curves and operating points of one curve-pump type, for a chart.
+/// Flows are total flows of all running units, m³/s; heads in m.
+#[derive(Debug, Clone, Serialize)]
+pub struct PumpSystemCurves {
+    pub pump: String,
+    pub units: u32,
+    /// (total flow, head) of `units` in parallel at the curve's speed, sampled on the curve's
+    /// interpolation (Fritsch–Carlson) from its lowest to its highest tabulated flow.
+    pub pump_curve: Vec<(f64, f64)>,
+    /// The file's measured points, scaled to `units` in parallel (flow × units, same head).
+    pub measured: Vec<(f64, f64)>,
+    /// Static lift from the rest water level to the tank inlet, m.
+    pub static_lift_m: f64,
+    /// Aquifer drawdown left by earlier pumping used for the second system curve, m.
+    pub past_drawdown_m: f64,
+    /// System head with no drawdown left by earlier pumping.
+    pub system_no_past: Vec<(f64, f64)>,
+    /// System head with `past_drawdown_m` added.
+    pub system_with_past: Vec<(f64, f64)>,
+    /// Rated-speed operating points (flow, head) on the two system curves.
+    pub operating_no_past: Option<(f64, f64)>,
+    pub operating_with_past: Option<(f64, f64)>,
+    /// Pumping water level (m below ground) at the two operating points:
+    /// static + s_past + (a₀ + B)Q + CQ².
+    pub pumping_level_no_past_m: Option<f64>,
+    pub pumping_level_with_past_m: Option<f64>,
+    /// Lowest level the water may fall to: intake depth − submergence margin, m below ground.
+    pub lowest_allowed_level_m: f64,
+}
+
+impl Model {
+    /// The pump–system chart data of pump type `i` with `units` running at the curve's speed.
+    ///
+    /// The system head is H(Q) = lift₀ + s_past + (a₀ + B)Q + CQ² + h_f(Q) + ΣK v²/2g (see
+    /// `hydraulics`); the tank inlet is at the top of the tank, so the tank level does not
+    /// enter it. `deepest_level_m` (depth below ground of the deepest pumping water level of a
+    /// year) sets s_past for the second curve: the s_past at which the rated-speed operating
+    /// point's level, static + s_past + (a₀ + B)Q + CQ², equals it (bisection; the level rises
+    /// with s_past, the fall of the flow taking back only part of each step). None for pumps without a curve
+    /// or with no units. `samples` (≥ 2) points per line.
+    pub fn pump_system_curves(
+        &self,
+        i: usize,
+        units: u32,
+        deepest_level_m: Option<f64>,
+        samples: usize,
+    ) -> Option<PumpSystemCurves> {
+        let t = self.tables.get(i)?.as_ref()?;
+        if units == 0 {
+            return None;
+        }
+        let p = &self.scheme.pumps[i];
+        let b = &self.scheme.boreholes[p.source_index];
+        let n = units as f64;
+        let samples = samples.max(2);
+        let q_lo = t.curve.flow_min_m3_per_s() * n;
+        let q_hi = t.curve.flow_max_m3_per_s() * n;
+        let qs: Vec<f64> = (0..samples)
+            .map(|k| q_lo + (q_hi - q_lo) * k as f64 / (samples - 1) as f64)
+            .collect();
+        let pump_curve = qs
+            .iter()
+            .filter_map(|q| t.curve.head_parallel(*q, units, 1.0).map(|h| (*q, h)))
+            .collect();
+        let measured = t
+            .curve
+            .points()
+            .map(|c| (c.flow_m3_per_s * n, c.head_m))
+            .collect();
+        let op = |s_past: f64| -> Option<pumps::OperatingPoint> {
+            pumps::operating_point(&t.curve, 1.0, units, |q| t.system.head_m(q, s_past)).ok()
+        };
+        let level_at = |s_past: f64| -> Option<f64> {
+            op(s_past)
+                .map(|o| b.static_depth_m + s_past + t.system.well_drawdown_m(o.flow_m3_per_s))
+        };
+        let past = match deepest_level_m {
+            Some(d) => {
+                let (mut lo, mut hi) = (0.0_f64, t.max_offset_m.max(0.0));
+                if level_at(lo).is_some_and(|l| l >= d) {
+                    0.0
+                } else {
+                    for _ in 0..60 {
+                        let mid = 0.5 * (lo + hi);
+                        match level_at(mid) {
+                            Some(l) if l < d => lo = mid,
+                            _ => hi = mid,
+                        }
+                    }
+                    lo
+                }
+            }
+            None => 0.0,
+        };
+        let sys = |s_past: f64| -> Vec<(f64, f64)> {
+            (0..samples)
+                .map(|k| {
+                    let q = q_hi * k as f64 / (samples - 1) as f64;
+                    (q, t.system.head_m(q, s_past))
+                })
+                .collect()
+        };
+        let pt = |s_past: f64| op(s_past).map(|o| (o.flow_m3_per_s, o.head_m));
+        Some(PumpSystemCurves {
+            pump: p.name.clone(),
+            units,
+            pump_curve,
+            measured,
+            static_lift_m: t.system.lift0_m,
+            past_drawdown_m: past,
+            system_no_past: sys(0.0),
+            system_with_past: sys(past),
+            operating_no_past: pt(0.0),
+            operating_with_past: pt(past),
+            pumping_level_no_past_m: level_at(0.0),
+            pumping_level_with_past_m: level_at(past),
+            lowest_allowed_level_m: b.intake_depth_m - b.submergence_margin_m,
+        })
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use approx::assert_relative_eq;
+    use std::path::Path;
+
+    use super::*;
+
+    fn kessa() -> Model {
+        let l = crate::scheme::load_file(
+            &Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/kessa-ridge-solar.yaml"),
+        )
+        .unwrap();
+        Model::new(&l.scheme).unwrap()
+    }
+
+    #[test]
+    fn curves_pass_through_the_file_and_meet_at_the_operating_point() {
+        let m = kessa();
+        let c = m.pump_system_curves(0, 2, None, 41).unwrap();
+        // Static lift from the file: inlet 1528 − ground 1480 + rest level 38 m = 86 m
+        // (arithmetic on the sample's inputs).
+        assert_relative_eq!(c.static_lift_m, 86.0, epsilon = 1e-9);
+        assert_relative_eq!(c.system_no_past[0].1, 86.0, epsilon = 1e-9);
+        // The interpolated curve of 2 units passes through the measured points at 2× flow
+        // (an interpolant reproduces its nodes; parallel units share the head).
+        let first = c.pump_curve.first().unwrap();
+        let last = c.pump_curve.last().unwrap();
+        assert_relative_eq!(first.0, 0.0, epsilon = 1e-12);
+        assert_relative_eq!(first.1, 150.0, epsilon = 1e-6);
+        assert_relative_eq!(last.0, 2.0 * 14.0 / 3600.0, epsilon = 1e-12);
+        assert_relative_eq!(last.1, 60.0, epsilon = 1e-6);
+        // At the operating point pump head equals system head.
+        let (q, h) = c.operating_no_past.unwrap();
+        let c2 = m.pump_system_curves(0, 2, None, 2).unwrap();
+        assert!(c2.pump_curve.len() == 2);
+        let t = m.tables[0].as_ref().unwrap();
+        assert_relative_eq!(h, t.system.head_m(q, 0.0), max_relative = 1e-3);
+    }
+
+    #[test]
+    fn past_drawdown_reproduces_the_deepest_level() {
+        let m = kessa();
+        let t = m.tables[0].as_ref().unwrap();
+        let base = m.pump_system_curves(0, 1, None, 5).unwrap();
+        let (q0, _) = base.operating_no_past.unwrap();
+        let level0 = 38.0 + t.system.well_drawdown_m(q0);
+        let want = level0 + 5.0;
+        let c = m.pump_system_curves(0, 1, Some(want), 5).unwrap();
+        // The flow falls as the lift grows, taking back part of the current-hour drawdown,
+        // so more than 5 m of past drawdown is needed to lower the level by 5 m.
+        assert!(c.past_drawdown_m >= 5.0 - 1e-6, "{}", c.past_drawdown_m);
+        assert!(c.past_drawdown_m < 10.0, "{}", c.past_drawdown_m);
+        let (q, _) = c.operating_with_past.unwrap();
+        assert!(q < q0, "more lift, less flow");
+        assert_relative_eq!(
+            38.0 + c.past_drawdown_m + t.system.well_drawdown_m(q),
+            want,
+            epsilon = 1e-6
+        );
+        // The two system curves differ by the past drawdown at every flow.
+        for (a, b) in c.system_no_past.iter().zip(&c.system_with_past) {
+            assert_relative_eq!(b.1 - a.1, c.past_drawdown_m, epsilon = 1e-9);
+        }
+        // Shallower than the no-past level: no past drawdown.
+        let c = m.pump_system_curves(0, 1, Some(level0 - 1.0), 5).unwrap();
+        assert_eq!(c.past_drawdown_m, 0.0);
+        assert!(m.pump_system_curves(0, 0, None, 5).is_none());
+    }
+}
