@@ -69,12 +69,12 @@ pub enum Command {
     Size(SizeArgs),
     /// Size the scheme (or evaluate a given design) and write the plan as an A4 PDF
     #[command(
-        after_help = "Exit codes: 0 the target is met, 1 no design meets it (the PDF is still written and says so), 2 bad input.\n\nExample:\n  tapplan plan samples/kessa-ridge-solar.yaml -o kessa-plan.pdf\n  tapplan plan samples/kessa-ridge-solar.yaml -o fixed.pdf --tank-m3 120 --pumps SolarSub-9=2 --array-kwp 12"
+        after_help = help_with_caution!("Exit codes: 0 the target is met, 1 no design meets it (the PDF is still written and says so), 2 bad input.\n\nExample:\n  tapplan plan samples/kessa-ridge-solar.yaml -o kessa-plan.pdf\n  tapplan plan samples/kessa-ridge-solar.yaml -o fixed.pdf --tank-m3 120 --pumps SolarSub-9=2 --array-kwp 12")
     )]
     Plan(PlanArgs),
     /// Re-run a plan PDF from the scheme file embedded in it and compare figures and bytes
     #[command(
-        after_help = "Exit codes: 0 figures and bytes match, 1 they differ, 2 the PDF has no embedded scheme or cannot be read.\n\nExample:\n  tapplan verify kessa-plan.pdf\n  tapplan verify kessa-plan.pdf --extract kessa.yaml"
+        after_help = help_with_caution!("Exit codes: 0 figures and bytes match, 1 they differ, 2 the PDF has no embedded scheme or cannot be read.\n\nExample:\n  tapplan verify kessa-plan.pdf\n  tapplan verify kessa-plan.pdf --extract kessa.yaml")
     )]
     Verify(VerifyArgs),
 }
