@@ -163,7 +163,15 @@ pub fn from_str(text: &str, label: &str) -> Result<RuleSet, RulesFileError> {
         let path = err.path().to_string();
         let path = if path == "." { String::new() } else { path };
         let msg = err.into_inner().to_string();
-        fail(vec![describe_serde_error(&path, &msg, &lines)])
+        fail(vec![
+            crate::scheme::load::describe_serde_error(
+                &path,
+                &msg,
+                &lines,
+                "an added rule needs id, quantity, check, severity, description and source",
+            )
+            .0,
+        ])
     })?;
     let mut problems = Vec::new();
     let set = apply(raw, &lines, &mut problems, label);
@@ -181,59 +189,6 @@ fn problem(field: &str, loc: Option<(usize, usize)>, message: String) -> Problem
         column: loc.map(|l| l.1),
         message,
     }
-}
-
-/// One serde error as a problem with its line.
-fn describe_serde_error(path: &str, msg: &str, lines: &LineMap) -> Problem {
-    let ticks: Vec<&str> = msg.split('`').skip(1).step_by(2).collect();
-    if let Some(rest) = msg.strip_prefix("unknown field ") {
-        let _ = rest;
-        let unknown = ticks.first().copied().unwrap_or("?");
-        let known: Vec<&str> = ticks.iter().skip(1).copied().collect();
-        let field = if path.is_empty() {
-            unknown.to_string()
-        } else if path == unknown || path.ends_with(&format!(".{unknown}")) {
-            path.to_string()
-        } else {
-            format!("{path}.{unknown}")
-        };
-        let mut message = format!("unknown key `{unknown}`");
-        if let Some(s) = closest(unknown, &known) {
-            message.push_str(&format!("; did you mean `{s}`?"));
-        }
-        message.push_str(&format!(" Keys allowed here: {}", known.join(", ")));
-        return problem(&field, lines.locate(&field), message);
-    }
-    if msg.starts_with("missing field ") {
-        let missing = ticks.first().copied().unwrap_or("?");
-        let field = if path.is_empty() {
-            missing.to_string()
-        } else {
-            format!("{path}.{missing}")
-        };
-        return problem(
-            &field,
-            lines.locate(path),
-            format!(
-                "required key `{missing}` is missing; an added rule needs id, quantity, check, severity, description and source"
-            ),
-        );
-    }
-    let message = if msg.starts_with("unknown variant ") {
-        let given = ticks.first().copied().unwrap_or("?");
-        let allowed: Vec<&str> = ticks.iter().skip(1).copied().collect();
-        let mut m = format!("`{given}` is not known here");
-        if let Some(s) = closest(given, &allowed) {
-            m.push_str(&format!("; did you mean `{s}`?"));
-        }
-        m.push_str(&format!(" Use one of: {}", allowed.join(", ")));
-        m
-    } else if let Some(rest) = msg.strip_prefix("invalid type: ") {
-        format!("wrong kind of value: {rest}")
-    } else {
-        msg.to_string()
-    };
-    problem(path, lines.locate(path), message)
 }
 
 /// Checks a limit given in the quantity's unit; returns it in the engine unit.

@@ -385,7 +385,12 @@ pub fn parse_raw(src: &Source) -> Result<(RawScheme, LineMap), SchemeError> {
                 let path = err.path().to_string();
                 let path = if path == "." { String::new() } else { path };
                 let msg = err.into_inner().to_string();
-                let (problem, removable) = describe_serde_error(&path, &msg, &lines);
+                let (problem, removable) = describe_serde_error(
+                    &path,
+                    &msg,
+                    &lines,
+                    "see the file format in README.md or start from `tapplan new`",
+                );
                 // a key removed for its wrong type is then "missing": already reported
                 if msg.starts_with("missing field") && removed.contains(&problem.field) {
                     return Err(fail(problems));
@@ -408,7 +413,13 @@ pub fn parse_raw(src: &Source) -> Result<(RawScheme, LineMap), SchemeError> {
 }
 
 /// Turns one serde error into a problem; returns the path to remove to continue checking.
-fn describe_serde_error(path: &str, msg: &str, lines: &LineMap) -> (Problem, Option<String>) {
+/// `missing_hint` follows the message about a missing required key (what the section needs).
+pub fn describe_serde_error(
+    path: &str,
+    msg: &str,
+    lines: &LineMap,
+    missing_hint: &str,
+) -> (Problem, Option<String>) {
     let locate = |p: &str| lines.locate(p);
     if let Some(rest) = msg.strip_prefix("unknown field ") {
         let names = backticked(rest);
@@ -452,7 +463,7 @@ fn describe_serde_error(path: &str, msg: &str, lines: &LineMap) -> (Problem, Opt
                 line,
                 column,
                 message: format!(
-                    "required key `{missing}` is missing{}; see the file format in README.md or start from `tapplan new`",
+                    "required key `{missing}` is missing{}; {missing_hint}",
                     if path.is_empty() {
                         String::new()
                     } else {
@@ -464,7 +475,17 @@ fn describe_serde_error(path: &str, msg: &str, lines: &LineMap) -> (Problem, Opt
         );
     }
     let (line, column) = locate(path).map_or((None, None), |(l, c)| (Some(l), Some(c)));
-    let message = if msg.contains("untagged enum RawProfile") {
+    let message = if msg.starts_with("unknown variant ") {
+        let ticks = backticked(msg);
+        let given = ticks.first().copied().unwrap_or("?");
+        let allowed: Vec<&str> = ticks.iter().skip(1).copied().collect();
+        let mut m = format!("`{given}` is not known here");
+        if let Some(s) = closest(given, &allowed) {
+            m.push_str(&format!("; did you mean `{s}`?"));
+        }
+        m.push_str(&format!("; use one of: {}", allowed.join(", ")));
+        m
+    } else if msg.contains("untagged enum RawProfile") {
         "give a built-in profile name (communal_taps, yard_taps, flat) or a list of 24 hourly factors".to_string()
     } else if let Some(rest) = msg.strip_prefix("invalid type: ") {
         format!("wrong kind of value: {}", plain_types(rest))
