@@ -353,6 +353,17 @@ pub fn plan_summary(p: &Plan, cur: &str) -> String {
             }
         }
     }
+    if let Some(c) = &p.chosen {
+        out.push_str(&format!(
+            "  storage: {:.2} days of average demand in the first year{}\n",
+            c.storage_days,
+            if p.weather_years > 1 {
+                " (1–3 days is the usual rule of thumb for solar pumping: common practice)"
+            } else {
+                ""
+            }
+        ));
+    }
     if let Some(md) = &p.mean_days {
         out.push_str(&format!("  {}\n", md.explanation));
     }
@@ -367,6 +378,7 @@ pub fn alternatives_table(p: &Plan, cur: &str) -> Table {
         "demand met (%)",
         "meets target",
         "first fails",
+        "storage (days)",
         &format!("NPV ({cur})"),
         &format!("capital ({cur})"),
     ]);
@@ -377,6 +389,7 @@ pub fn alternatives_table(p: &Plan, cur: &str) -> Table {
             pct(a.judged_demand_met_fraction),
             if a.meets_target { "yes" } else { "no" }.to_string(),
             a.first_failing_year.map_or("-".into(), |y| y.to_string()),
+            format!("{:.2}", a.storage_days),
             format!("{:.0}", a.cost.npv),
             format!("{:.0}", a.cost.capital),
         ]);

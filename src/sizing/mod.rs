@@ -42,6 +42,8 @@ pub struct Evaluated {
     pub judged_demand_met_fraction: f64,
     pub meets_target: bool,
     pub cost: CostBreakdown,
+    /// Usable storage in days of the base year's average demand (days of autonomy).
+    pub storage_days: f64,
     /// First year (calendar) the design misses the target, if within the horizon.
     pub first_failing_year: Option<i32>,
 }
@@ -386,6 +388,7 @@ fn evaluated(
         judged_demand_met_fraction: e.judged_demand_met_fraction,
         meets_target: meets_target(&m.scheme, e),
         cost,
+        storage_days: simulate::storage_days(&m.scheme, d.tank_m3, &daily_demand(&m.scheme, 0)),
         first_failing_year: ffy,
     }
 }
