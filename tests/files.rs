@@ -93,6 +93,69 @@ fn killed_run_leaves_the_previous_output_byte_for_byte() {
 }
 
 #[test]
+fn run_killed_while_writing_leaves_the_previous_output_and_the_temp_is_cleaned_later() {
+    // the sample as it is (30 weather years) writes about 2 MB of JSON: a window to kill in
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("k.yaml"), sample_text()).unwrap();
+    let out = dir.path().join("out.json");
+    std::fs::write(&out, "previous\n").unwrap();
+    let bin = assert_cmd::cargo::cargo_bin("tapplan");
+    let mut child = std::process::Command::new(&bin)
+        .current_dir(dir.path())
+        .args(["run", "k.yaml", "--json", "out.json", "--quiet"])
+        .stdout(Stdio::null())
+        .stderr(Stdio::null())
+        .spawn()
+        .unwrap();
+    let start = std::time::Instant::now();
+    let mut caught = false;
+    while child.try_wait().unwrap().is_none() && start.elapsed() < LIMIT {
+        if names(dir.path())
+            .iter()
+            .any(|n| n.starts_with(".out.json."))
+        {
+            child.kill().unwrap();
+            caught = true;
+            break;
+        }
+        std::thread::sleep(Duration::from_micros(200));
+    }
+    let _ = child.wait();
+    let now = std::fs::read(&out).unwrap();
+    eprintln!(
+        "killed while the temp file existed: {caught}; target untouched: {}",
+        now == b"previous\n"
+    );
+    if caught && now == b"previous\n" {
+        // killed between creating the temp file and the rename: the target is untouched and
+        // only the hidden temp file is left
+        let left = names(dir.path());
+        assert_eq!(left.len(), 3, "{left:?}");
+        assert!(left[0].starts_with(".out.json.") && left[0].ends_with(".tmp"));
+        // the next successful write removes it
+        tapplan()
+            .current_dir(dir.path())
+            .args([
+                "run",
+                "k.yaml",
+                "--json",
+                "out.json",
+                "--quiet",
+                "--tank-m3",
+                "80",
+            ])
+            .timeout(LIMIT)
+            .assert()
+            .success();
+        assert_eq!(names(dir.path()), vec!["k.yaml", "out.json"]);
+    } else {
+        // the rename came first: the output is the whole new file, never a part
+        let v: serde_json::Value = serde_json::from_slice(&now).unwrap();
+        assert!(v.is_object());
+    }
+}
+
+#[test]
 fn completed_run_replaces_the_output_and_leaves_no_temp_file() {
     let dir = tempfile::tempdir().unwrap();
     quick_scheme(dir.path());
