@@ -230,6 +230,13 @@ fn oversized_search_is_refused_before_it_runs() {
     let err = String::from_utf8_lossy(&out.stderr);
     assert_eq!(out.status.code(), Some(2), "{err}");
     assert!(err.contains("ensemble checks"), "{err}");
+    // the size of the search is said up front
+    assert!(
+        err.contains(
+            "large search: 440 pump sets × 301 array sizes × 4 tank sizes = 529760 designs"
+        ),
+        "{err}"
+    );
     assert!(err.contains("narrow"), "{err}");
     assert!(t.elapsed() < Duration::from_secs(30), "{:?}", t.elapsed());
 }
