@@ -93,10 +93,24 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
     let loaded = tryo!(load(&a.file));
     let s = &loaded.scheme;
     let m = tryo!(model(&a.file, s));
-    let sets = tapplan::sizing::pump_sets(s).map(|v| v.len()).unwrap_or(0);
-    let n_designs = sets
-        * tapplan::sizing::array_candidates(s).len()
-        * tapplan::sizing::tank_candidates(s).len();
+    let n_designs = match tapplan::sizing::estimate_search(&m) {
+        Ok(est) => {
+            if est.year_simulations > tapplan::sizing::LARGE_SEARCH_YEAR_SIMULATIONS {
+                eprintln!(
+                    "{}: large search: {} pump sets × {} array sizes × {} tank sizes = {} designs in the ranges; up to about {} ensemble checks ({} year-simulations)",
+                    a.file.display(),
+                    est.pump_sets,
+                    est.array_sizes,
+                    est.tank_sizes,
+                    est.designs_in_ranges,
+                    est.ensemble_checks,
+                    est.year_simulations
+                );
+            }
+            est.designs_in_ranges
+        }
+        Err(_) => 0, // the search itself reports the problem
+    };
     let plan = {
         let _p = Progress::start(format!(
             "sizing {}: searching {n_designs} designs in the ranges over {} weather year(s)",

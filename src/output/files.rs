@@ -56,7 +56,58 @@ pub fn write_output(path: &Path, bytes: &[u8], inputs: &[&Path]) -> Result<(), W
         let _ = std::fs::remove_file(&tmp.0);
         return Err(io(e));
     }
+    remove_stale_temps(&dir, path, &tmp.0);
     Ok(())
+}
+
+/// The process id in a temp file name `.{target}.{pid}.{n}.tmp` made for `target`, if it is one.
+fn temp_owner(name: &str, target: &str) -> Option<u32> {
+    let rest = name
+        .strip_prefix('.')?
+        .strip_prefix(target)?
+        .strip_prefix('.')?;
+    let rest = rest.strip_suffix(".tmp")?;
+    let (pid, n) = rest.split_once('.')?;
+    n.parse::<u32>().ok()?;
+    pid.parse().ok()
+}
+
+/// True when process `pid` is known to have ended (Linux `/proc`; elsewhere never known).
+fn process_gone(pid: u32) -> bool {
+    let proc_dir = Path::new("/proc");
+    proc_dir.join("self").exists() && !proc_dir.join(pid.to_string()).exists()
+}
+
+/// Removes temp files of the same target left by killed runs: another process id that is no
+/// longer running, and older than this write's own temp file. Best effort: errors are ignored.
+fn remove_stale_temps(dir: &Path, target: &Path, own_tmp: &Path) {
+    let Some(target_name) = target.file_name().map(|s| s.to_string_lossy().into_owned()) else {
+        return;
+    };
+    // the own temp file was renamed to the target: its time is this write's time
+    let Ok(now) = std::fs::metadata(target).and_then(|m| m.modified()) else {
+        return;
+    };
+    let Ok(entries) = std::fs::read_dir(dir) else {
+        return;
+    };
+    for e in entries.flatten() {
+        let name = e.file_name().to_string_lossy().into_owned();
+        let Some(pid) = temp_owner(&name, &target_name) else {
+            continue;
+        };
+        let p = e.path();
+        if pid == std::process::id() || p == own_tmp || !process_gone(pid) {
+            continue;
+        }
+        let older = e
+            .metadata()
+            .and_then(|m| m.modified())
+            .is_ok_and(|t| t < now);
+        if older && e.file_type().is_ok_and(|t| t.is_file()) {
+            let _ = std::fs::remove_file(&p);
+        }
+    }
 }
 
 /// Creates a new hidden temporary file beside the target.
@@ -78,4 +129,24 @@ fn tempfile_in(dir: &Path, target: &Path) -> std::io::Result<(PathBuf, std::fs::
         }
     }
     Err(std::io::Error::other("could not create a temporary file"))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn temp_names_are_recognised_only_for_their_target() {
+        assert_eq!(temp_owner(".out.json.4242.0.tmp", "out.json"), Some(4242));
+        assert_eq!(temp_owner(".out.json.4242.17.tmp", "out.json"), Some(4242));
+        assert_eq!(temp_owner(".out.json.4242.0.tmp", "out.jso"), None);
+        assert_eq!(temp_owner(".out.json.x.0.tmp", "out.json"), None);
+        assert_eq!(temp_owner("out.json", "out.json"), None);
+        assert_eq!(temp_owner(".out.json.4242.0.tmpx", "out.json"), None);
+    }
+
+    #[test]
+    fn a_running_process_is_not_gone() {
+        assert!(!process_gone(std::process::id()));
+    }
 }

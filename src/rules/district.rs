@@ -533,7 +533,7 @@ add:
         let e = from_str("change:\n  walk-to-tap:\n    severity: eror\n", "d.yaml").unwrap_err();
         assert_eq!(e.problems[0].line, Some(3));
         assert!(
-            e.problems[0].message.contains("Use one of: fail, warn"),
+            e.problems[0].message.contains("use one of: fail, warn"),
             "{}",
             e.problems[0].message
         );

@@ -20,6 +20,11 @@ pub const MAX_FILE_BYTES: usize = 1024 * 1024;
 /// Deepest nesting of YAML collections accepted. The format itself needs five.
 pub const MAX_NESTING: usize = 32;
 
+/// Most YAML nodes that aliases (`*name`) may add to the file when expanded. A scheme that
+/// reuses a time window or a profile through an anchor adds tens of nodes; a "billion laughs"
+/// file adds billions. The check runs on the event stream, before anything is expanded.
+pub const MAX_ALIAS_EXPANSION_NODES: u64 = 10_000;
+
 /// Where each field path starts in the file (1-based line and column).
 #[derive(Debug, Default, Clone)]
 pub struct LineMap {
@@ -27,6 +32,12 @@ pub struct LineMap {
     /// Keys that appear twice in one mapping: (path, line, column) of the repeat.
     duplicates: Vec<(String, usize, usize)>,
     depth: usize,
+    /// False when the event parser refused the text (the map is then empty).
+    parsed: bool,
+    /// Nodes in the file as written (an alias counts one).
+    own_nodes: u64,
+    /// Nodes once every alias is replaced by the node it names.
+    expanded_nodes: u64,
 }
 
 impl LineMap {
@@ -42,7 +53,15 @@ impl LineMap {
             lines: rec.lines,
             duplicates: rec.duplicates,
             depth: rec.depth,
+            parsed: true,
+            own_nodes: rec.own_nodes,
+            expanded_nodes: rec.expanded_nodes,
         }
+    }
+
+    /// How many nodes aliases add when expanded (0 without aliases).
+    pub fn alias_expansion_nodes(&self) -> u64 {
+        self.expanded_nodes.saturating_sub(self.own_nodes)
     }
 
     /// The first repeated key, if any: (path, line, column).
@@ -92,6 +111,46 @@ struct LineRecorder {
     duplicates: Vec<(String, usize, usize)>,
     depth: usize,
     depth_exceeded: bool,
+    own_nodes: u64,
+    expanded_nodes: u64,
+    /// Expanded size of each anchor seen so far, by anchor id.
+    anchor_nodes: BTreeMap<usize, u64>,
+    /// Open collections: (anchor id or 0, expanded node count before the collection).
+    open: Vec<(usize, u64)>,
+}
+
+impl LineRecorder {
+    /// Counts nodes as written and as expanded, so alias bombs are found without expanding.
+    fn count_nodes(&mut self, ev: &Event) {
+        match ev {
+            Event::Scalar(_, _, anchor, _) => {
+                self.own_nodes += 1;
+                self.expanded_nodes = self.expanded_nodes.saturating_add(1);
+                if *anchor > 0 {
+                    self.anchor_nodes.insert(*anchor, 1);
+                }
+            }
+            Event::MappingStart(anchor, _) | Event::SequenceStart(anchor, _) => {
+                self.own_nodes += 1;
+                self.open.push((*anchor, self.expanded_nodes));
+                self.expanded_nodes = self.expanded_nodes.saturating_add(1);
+            }
+            Event::MappingEnd | Event::SequenceEnd => {
+                if let Some((anchor, before)) = self.open.pop()
+                    && anchor > 0
+                {
+                    self.anchor_nodes
+                        .insert(anchor, self.expanded_nodes.saturating_sub(before));
+                }
+            }
+            Event::Alias(anchor) => {
+                self.own_nodes += 1;
+                let n = self.anchor_nodes.get(anchor).copied().unwrap_or(1);
+                self.expanded_nodes = self.expanded_nodes.saturating_add(n);
+            }
+            _ => {}
+        }
+    }
 }
 
 fn join(parent: &str, key: &str) -> String {
@@ -104,6 +163,7 @@ fn join(parent: &str, key: &str) -> String {
 
 impl MarkedEventReceiver for LineRecorder {
     fn on_event(&mut self, ev: Event, mark: Marker) {
+        self.count_nodes(&ev);
         let pos = (mark.line(), mark.col() + 1);
         let starts_node = matches!(
             ev,
@@ -323,6 +383,9 @@ pub fn parse_raw(src: &Source) -> Result<(RawScheme, LineMap), SchemeError> {
         )]));
     }
     let lines = LineMap::build(&src.text);
+    if let Some(problem) = alias_problem(&src.text, &lines) {
+        return Err(fail(vec![problem]));
+    }
     let mut value: serde_yaml::Value = match serde_yaml::from_str(&src.text) {
         Ok(v) => v,
         Err(e)
@@ -410,6 +473,34 @@ pub fn parse_raw(src: &Source) -> Result<(RawScheme, LineMap), SchemeError> {
         }
     }
     Err(fail(problems))
+}
+
+/// Refuses YAML whose aliases would expand too far, before the serde parse expands them.
+fn alias_problem(text: &str, lines: &LineMap) -> Option<Problem> {
+    if lines.parsed {
+        let added = lines.alias_expansion_nodes();
+        return (added > MAX_ALIAS_EXPANSION_NODES).then(|| {
+            whole_file_problem(format!(
+                "the YAML aliases (`*name`) would expand to {added} more values; a scheme may add at most {MAX_ALIAS_EXPANSION_NODES} through aliases — write the values out instead of repeating anchors"
+            ))
+        });
+    }
+    // The event pass refused the text, so its aliases were not counted: refuse any alias
+    // rather than let the serde parse expand an unchecked one.
+    let has_alias = text.as_bytes().windows(2).enumerate().any(|(i, w)| {
+        w[0] == b'*'
+            && (w[1].is_ascii_alphanumeric() || w[1] == b'_' || w[1] == b'-')
+            && (i == 0
+                || matches!(
+                    text.as_bytes()[i - 1],
+                    b' ' | b'\t' | b'\n' | b'[' | b'{' | b','
+                ))
+    });
+    has_alias.then(|| {
+        whole_file_problem(
+            "the YAML could not be read far enough to check its aliases (`*name`); write the values out instead of using aliases".into(),
+        )
+    })
 }
 
 /// Turns one serde error into a problem; returns the path to remove to continue checking.

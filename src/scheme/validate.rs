@@ -1174,7 +1174,7 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
         if let Some(s) = streams.get(p.source_index) {
             let lift = tank.inlet_elevation_m - elevation_m;
             if lift <= s.usable_fall_m {
-                c.err(&format!("pumps[{i}].ram.elevation_m"), format!("the tank inlet is only {lift:.1} m above the ram, not above the supply fall ({} m); a ram lifts higher than its fall", s.usable_fall_m));
+                c.err(&format!("pumps[{i}].ram.elevation_m"), format!("the tank inlet (tank.inlet_elevation_m) is only {lift:.1} m above the ram, not above the supply fall ({} m, sources.streams[{}].usable_fall_m); a ram lifts higher than its fall", s.usable_fall_m, p.source_index));
             }
         }
     }
@@ -1557,7 +1557,7 @@ fn check_curve(c: &mut Ck, f: &str, pts: &[RawCurvePoint], rho_g: f64) -> Vec<Cu
             );
         }
         if out[j].head_m > out[j - 1].head_m {
-            c.err(&format!("{cf}[{j}].head_m"), format!("head rises with flow ({} m after {} m); a measured pump curve falls as flow rises — check the order of the points", out[j].head_m, out[j - 1].head_m));
+            c.err(&format!("{cf}[{j}].head_m"), format!("head rises with flow ({} m after {} m at {cf}[{}].head_m); a measured pump curve falls as flow rises — check the order of the points", out[j].head_m, out[j - 1].head_m, j - 1));
         }
     }
     out
