@@ -320,21 +320,33 @@ pub fn ensemble_passes(m: &Model, d: &Design, year: u32, order: &[usize]) -> boo
     let n = m.weather_years_for(d);
     let allowed = years_allowed_to_fail(s.targets.judged_on, n);
     let abort = year_abort(m, year, &sc);
+    let years: Vec<usize> = order.iter().copied().filter(|w| *w < n).take(n).collect();
     let mut fails = 0;
-    for (k, w) in order.iter().filter(|w| **w < n).take(n).enumerate() {
-        let r = m.run_year_with(d, year, *w, false, &sc, Some(abort));
-        if !year_meets_target(s, &r) {
-            fails += 1;
-            if fails > allowed {
-                return false;
-            }
+    let mut done = 0;
+    // a fixed number of years at a time, in parallel: the same years run on every machine,
+    // so the answer and the count of year-simulations do not depend on the core count
+    for chunk in years.chunks(ENSEMBLE_CHUNK) {
+        use rayon::prelude::*;
+        let failed = chunk
+            .par_iter()
+            .filter(|w| {
+                !year_meets_target(s, &m.run_year_with(d, year, **w, false, &sc, Some(abort)))
+            })
+            .count();
+        fails += failed;
+        done += chunk.len();
+        if fails > allowed {
+            return false;
         }
-        if fails + (n - k - 1) <= allowed {
+        if fails + (n - done) <= allowed {
             return true;
         }
     }
     true
 }
+
+/// Weather years judged at a time in an ensemble check.
+const ENSEMBLE_CHUNK: usize = 2;
 
 /// Confirms a design: steps the tank up until it passes, then down while the next smaller tank
 /// passes too (neither moves when shortfall is monotone in tank size, as assumed). Returns the
@@ -872,7 +884,9 @@ fn sensitivity(m: &Model, d: &Design, median_w: usize) -> Result<Vec<Sensitivity
     let sens = &s.sensitivity;
     let mut rows = Vec::new();
     let row = |case: String, mm: &Model, sc: Scenario, fuel: f64| -> SensitivityRow {
+        use rayon::prelude::*;
         let years: Vec<YearResult> = (0..mm.weather_years_for(d))
+            .into_par_iter()
             .map(|w| mm.run_year_with(d, h, w, false, &sc, None))
             .collect();
         let e = simulate::summarise(&mm.scheme, years);
