@@ -22,7 +22,6 @@ macro_rules! tryo {
 }
 
 /// How a command ended.
-#[allow(dead_code)] // `Failed` is used once checks and targets land
 enum Outcome {
     Ok,
     Failed,
@@ -403,11 +402,6 @@ fn cmd_rules(a: cli::RulesArgs) -> anyhow::Result<Outcome> {
     println!("Sources:");
     print!("{}", render::references(&rules));
     Ok(Outcome::Ok)
-}
-
-#[allow(dead_code)]
-fn label(p: &Path) -> String {
-    p.display().to_string()
 }
 
 /// Checks that the output's folder exists, so the error names the folder rather than a

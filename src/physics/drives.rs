@@ -7,8 +7,8 @@
 
 use thiserror::Error;
 
-/// Standard gravity, m/s² (CGPM 1901 conventional value).
-pub const G_M_PER_S2: f64 = 9.80665;
+/// Standard gravity, m/s² (CGPM 1901 conventional value), shared with the water module.
+pub use super::water::G_M_PER_S2;
 
 /// Typical no-load fuel coefficient a of the linear generator fuel curve, L per kWh of rated
 /// power per hour (common practice for small diesel sets, about 0.08).

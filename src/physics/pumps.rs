@@ -8,7 +8,7 @@
 use thiserror::Error;
 
 /// Standard acceleration of gravity, m/s² (3rd CGPM, 1901; exact by definition).
-pub const STANDARD_GRAVITY_M_PER_S2: f64 = 9.80665;
+pub const STANDARD_GRAVITY_M_PER_S2: f64 = super::water::G_M_PER_S2;
 
 /// Density of the water the power column of a curve is assumed to be measured with, kg/m³:
 /// clean water at 20 °C, 998.2 kg/m³ (CRC Handbook of Chemistry and Physics, water density
@@ -1515,6 +1515,27 @@ mod tests {
                     max_relative = 1e-15
                 );
             }
+            // the inverse, power for a given flow: against the analytic speed
+            // n = sqrt((H_sys + A q²)/H0) and power nf·n³(P0 + P1 q/n); linear between the
+            // 33 samples, so a looser tolerance (stated on `power_for_flow`)
+            for i in 1..20 {
+                let q_total = t.flow_for_power(t.min_power_w())
+                    + (t.flow_for_power(t.max_power_w()) - t.flow_for_power(t.min_power_w()))
+                        * i as f64
+                        / 20.0;
+                let q = q_total / nf;
+                let n = ((system(q_total) + A * q * q) / H0).sqrt();
+                let p_analytic = nf * n * n * n * (P0 + P1 * q / n);
+                assert_relative_eq!(
+                    t.power_for_flow(q_total).unwrap(),
+                    p_analytic,
+                    max_relative = 2e-3
+                );
+            }
+            assert!(
+                t.power_for_flow(10.0 * t.flow_for_power(t.max_power_w()))
+                    .is_none()
+            );
             assert!(t.lookup(0.5 * t.min_power_w()).is_none());
             assert_eq!(t.flow_for_power(0.5 * t.min_power_w()), 0.0);
             let top = t.lookup(10.0 * t.max_power_w()).unwrap();

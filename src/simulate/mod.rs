@@ -33,32 +33,7 @@ pub struct Design {
 impl Design {
     /// The design the scheme file itself states, if it states one completely.
     pub fn from_scheme(s: &Scheme) -> Result<Design, String> {
-        let tank = s
-            .tank
-            .capacity_m3
-            .ok_or("the file gives no tank.capacity_m3; give one or use --tank-m3")?;
-        let mut units = Vec::new();
-        for p in &s.pumps {
-            units.push(p.units.ok_or_else(|| {
-                format!(
-                    "pump `{}` has no `units`; give the installed count or use --pumps {}=N",
-                    p.name, p.name
-                )
-            })?);
-        }
-        let array_w = if s.uses_solar() {
-            s.solar
-                .as_ref()
-                .and_then(|x| x.array_peak_w)
-                .ok_or("the file gives no drives.solar.array_kwp; give one or use --array-kwp")?
-        } else {
-            0.0
-        };
-        Ok(Design {
-            tank_m3: tank,
-            units,
-            array_w,
-        })
+        resolve_design(s, &DesignOverrides::default())
     }
 
     /// "60 m³ tank, 1 × SolarSub-9, 6.0 kWp".
@@ -452,23 +427,14 @@ impl Model {
         weather: usize,
         keep_hourly: bool,
     ) -> YearResult {
-        self.run_year_scaled(design, year_offset, weather, keep_hourly, 1.0)
-    }
-
-    /// As `run_year` with demand multiplied by `demand_factor`.
-    pub fn run_year_scaled(
-        &self,
-        design: &Design,
-        year_offset: u32,
-        weather: usize,
-        keep_hourly: bool,
-        demand_factor: f64,
-    ) -> YearResult {
-        let sc = Scenario {
-            demand_factor,
-            ..Scenario::default()
-        };
-        self.run_year_with(design, year_offset, weather, keep_hourly, &sc, None)
+        self.run_year_with(
+            design,
+            year_offset,
+            weather,
+            keep_hourly,
+            &Scenario::default(),
+            None,
+        )
     }
 
     /// Annual supplied demand of a year under a scenario, m³.
@@ -564,20 +530,10 @@ impl Model {
 
     /// Runs every weather year and summarises reliability.
     pub fn run_ensemble(&self, design: &Design, year_offset: u32) -> Ensemble {
-        self.run_ensemble_scaled(design, year_offset, 1.0)
-    }
-
-    /// As `run_ensemble` with demand multiplied by `demand_factor`.
-    pub fn run_ensemble_scaled(
-        &self,
-        design: &Design,
-        year_offset: u32,
-        demand_factor: f64,
-    ) -> Ensemble {
         use rayon::prelude::*;
         let years: Vec<YearResult> = (0..self.weather_years_for(design))
             .into_par_iter()
-            .map(|w| self.run_year_scaled(design, year_offset, w, false, demand_factor))
+            .map(|w| self.run_year(design, year_offset, w, false))
             .collect();
         summarise(&self.scheme, years)
     }
