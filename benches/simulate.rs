@@ -33,7 +33,9 @@ fn bench(c: &mut Criterion) {
     let mut g = c.benchmark_group("run_year");
     for (name, m, d) in &all {
         g.bench_function(name.as_str(), |b| {
-            b.iter(|| black_box(m.run_year(black_box(d), 0, 0, false)))
+            b.iter(|| {
+                black_box(m.simulate_year(black_box(d), 0, 0, false, &Default::default(), None))
+            })
         });
     }
     g.finish();

@@ -146,3 +146,112 @@ fn run_of_the_chosen_design_repeats_the_sized_figures() {
         );
     }
 }
+
+/// The branch-and-bound search against brute force: on a narrowed copy of the hand-and-solar
+/// sample (every design in its ranges judged on the full ensemble), the cheapest design that
+/// meets the target, and the cheapest for each unit count, have the costs the search reports.
+#[test]
+fn search_finds_the_cheapest_design_that_brute_force_finds() {
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/sabuya-handpumps.yaml"),
+    )
+    .unwrap();
+    let narrowed = text
+        .replace(
+            "array_range_kwp: {min_kwp: 0.5, max_kwp: 4.0, module_kwp: 0.25}",
+            "array_range_kwp: {min_kwp: 0.5, max_kwp: 3.0, module_kwp: 0.5}",
+        )
+        .replace("max_units: 6", "max_units: 2")
+        .replace("years: 30", "years: 8");
+    assert_ne!(narrowed, text, "the sample changed: update the narrowing");
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("narrow.yaml");
+    std::fs::write(&path, &narrowed).unwrap();
+    let s = load_file(&path).unwrap().scheme;
+    let m = Model::new(&s).unwrap();
+    let plan = size_with_model(&m).unwrap();
+
+    let h = s.info.horizon_years;
+    let mut best: Option<f64> = None;
+    let mut per_count = std::collections::BTreeMap::<u32, f64>::new();
+    for units in tapplan::sizing::pump_sets(&s).unwrap() {
+        let solar = s
+            .pumps
+            .iter()
+            .zip(&units)
+            .any(|(p, n)| *n > 0 && p.drive == tapplan::scheme::DriveKind::Solar);
+        let arrays = if solar {
+            tapplan::sizing::array_candidates(&s)
+        } else {
+            vec![0.0]
+        };
+        for a in arrays {
+            for t in tank_candidates(&s) {
+                let d = Design {
+                    tank_m3: t,
+                    units: units.clone(),
+                    array_w: a,
+                };
+                if !meets_target(&s, &m.run_ensemble(&d, h)) {
+                    continue;
+                }
+                // no generator or grid: the NPV needs no simulation
+                let c = tapplan::sizing::cost::npv_lower_bound(&s, &d);
+                best = Some(best.map_or(c, |b: f64| b.min(c)));
+                let n: u32 = units.iter().sum();
+                let e = per_count.entry(n).or_insert(c);
+                *e = e.min(c);
+            }
+        }
+    }
+    let best = best.expect("some design in the narrowed ranges meets the target");
+    let chosen = plan.chosen.as_ref().expect("the search finds a design");
+    assert!(
+        (chosen.cost.npv - best).abs() <= 1e-6 * best,
+        "search chose {} at {}, brute force finds {}",
+        chosen.design_text,
+        chosen.cost.npv,
+        best
+    );
+    for alt in &plan.alternatives {
+        let n: u32 = alt.design.units.iter().sum();
+        let want = per_count[&n];
+        assert!(
+            (alt.cost.npv - want).abs() <= 1e-6 * want,
+            "{} units: search gives {} at {}, brute force {}",
+            n,
+            alt.design_text,
+            alt.cost.npv,
+            want
+        );
+    }
+    assert_eq!(plan.alternatives.len(), per_count.len());
+}
+
+/// A year asked for twice is run once and gives the same figures as running it afresh.
+#[test]
+fn remembered_years_equal_fresh_runs_and_count_once() {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/kessa-ridge-solar.yaml");
+    let s = load_file(&path).unwrap().scheme;
+    let m = Model::new(&s).unwrap();
+    let d = Design::from_scheme(&s).unwrap();
+    let a = m.run_year(&d, 3, 5, false);
+    let runs = m.simulations_run();
+    let b = m.run_year(&d, 3, 5, false);
+    assert_eq!(
+        m.simulations_run(),
+        runs,
+        "the second ask ran the year again"
+    );
+    let fresh = m.simulate_year(&d, 3, 5, false, &Default::default(), None);
+    for r in [&b, &fresh] {
+        assert_eq!(
+            serde_json::to_string(&a).unwrap(),
+            serde_json::to_string(r).unwrap()
+        );
+    }
+    // a different weather year or tank is a different year
+    let c = m.run_year(&d, 3, 6, false);
+    let _ = c;
+    assert_eq!(m.simulations_run(), runs + 1);
+}

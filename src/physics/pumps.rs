@@ -1137,6 +1137,42 @@ impl PowerFlowTable {
         })
     }
 
+    /// Flow (m³/s), power used (W) and whether the point lies beyond the curve's table, for
+    /// total input power P in W, from one search: the same values as [`Self::lookup`] without
+    /// head and speed. `None` below [`Self::min_power_w`] or for NaN.
+    pub fn flow_and_power(&self, power_w: f64) -> Option<(f64, f64, bool)> {
+        let last = self.power_w.len() - 1;
+        if power_w.is_nan() || power_w < self.power_w[0] {
+            return None;
+        }
+        if power_w >= self.power_w[last] {
+            return Some((
+                self.flow[last],
+                self.power_w[last],
+                self.beyond_from_index <= last,
+            ));
+        }
+        // The samples are strictly rising in power and nearly evenly spaced: guess the
+        // interval from the power and step to the right one (the interval binary search
+        // would give; usually no step at all).
+        let p = &self.power_w;
+        let span = p[last] - p[0];
+        let mut k = (((power_w - p[0]) / span * last as f64) as usize).min(last - 1);
+        while k > 0 && p[k] > power_w {
+            k -= 1;
+        }
+        while k + 1 < last && p[k + 1] <= power_w {
+            k += 1;
+        }
+        let width = self.power_w[k + 1] - self.power_w[k];
+        let (h00, h10, h01, h11) = hermite_basis((power_w - self.power_w[k]) / width);
+        let q = h00 * self.flow[k]
+            + h10 * width * self.flow_slope[k]
+            + h01 * self.flow[k + 1]
+            + h11 * width * self.flow_slope[k + 1];
+        Some((q, power_w, self.beyond_from_index <= k + 1))
+    }
+
     /// Total input power in W at which the units deliver total flow q (m³/s): the inverse of
     /// [`Self::flow_for_power`], by linear interpolation between the tabulated samples (flow
     /// rises with power along the table). `None` outside the table's flow range.
@@ -1514,7 +1550,29 @@ mod tests {
                     r.flow_m3_per_s,
                     max_relative = 1e-15
                 );
+                // the one-search variant: the same flow, the power used, the same flag, and
+                // the flow itself satisfies the analytic power equation
+                let (q_fp, p_used, beyond) = t.flow_and_power(power).unwrap();
+                assert_eq!(q_fp, r.flow_m3_per_s);
+                assert_eq!(p_used, r.power_used_w);
+                assert_eq!(beyond, r.beyond_table);
+                let qn = q_fp / nf;
+                assert_relative_eq!(
+                    nf * n * n * n * (P0 + P1 * qn / n),
+                    power,
+                    max_relative = 5e-5
+                );
             }
+            // at the ends of the table and outside it
+            for power in [t.min_power_w(), t.max_power_w(), 3.0 * t.max_power_w()] {
+                let r = t.lookup(power).unwrap();
+                assert_eq!(
+                    t.flow_and_power(power),
+                    Some((r.flow_m3_per_s, r.power_used_w, r.beyond_table))
+                );
+            }
+            assert_eq!(t.flow_and_power(0.5 * t.min_power_w()), None);
+            assert_eq!(t.flow_and_power(f64::NAN), None);
             // the inverse, power for a given flow: against the analytic speed
             // n = sqrt((H_sys + A q²)/H0) and power nf·n³(P0 + P1 q/n); linear between the
             // 33 samples, so a looser tolerance (stated on `power_for_flow`)

@@ -303,6 +303,116 @@ fn midpoint_hour_angle_rad(hour: usize) -> f64 {
     (hour as f64 + 0.5 - 12.0) * RAD_PER_HOUR
 }
 
+/// The parts of the daily split and transposition that depend only on the day, the site and
+/// the array (not on the day's irradiation): computed once per day of the year and reused for
+/// every weather year.
+#[derive(Debug, Clone)]
+pub struct DayGeometry {
+    /// Sunset hour angle, rad.
+    ws: f64,
+    /// Daily extraterrestrial horizontal irradiation H0, J/m².
+    h0: f64,
+    /// Collares-Pereira & Rabl rt and Liu & Jordan rd at each hour's midpoint, and their sums.
+    rt: [f64; 24],
+    rd: [f64; 24],
+    sum_rt: f64,
+    sum_rd: f64,
+    /// Beam ratio Rb at each hour's midpoint on the array plane.
+    rb: [f64; 24],
+    tilt_rad: f64,
+    albedo: f64,
+}
+
+impl DayGeometry {
+    /// The geometry of `day_of_year` at latitude `lat_rad` for an array tilted `tilt_rad`
+    /// facing `surface_azimuth_rad` (from due south, west positive), ground albedo 0..1.
+    pub fn new(
+        lat_rad: f64,
+        day_of_year: u32,
+        tilt_rad: f64,
+        surface_azimuth_rad: f64,
+        albedo: f64,
+    ) -> DayGeometry {
+        let decl = declination_rad(day_of_year);
+        let ws = sunset_hour_angle_rad(lat_rad, decl);
+        let h0 = extraterrestrial_daily_j_per_m2(lat_rad, day_of_year);
+        let mut g = DayGeometry {
+            ws,
+            h0,
+            rt: [0.0; 24],
+            rd: [0.0; 24],
+            sum_rt: 0.0,
+            sum_rd: 0.0,
+            rb: [0.0; 24],
+            tilt_rad,
+            albedo,
+        };
+        for hour in 0..24 {
+            let w = midpoint_hour_angle_rad(hour);
+            let rt = collares_pereira_rabl_rt(w, ws);
+            let rd = liu_jordan_rd(w, ws);
+            g.rt[hour] = rt;
+            g.rd[hour] = rd;
+            g.sum_rt += rt;
+            g.sum_rd += rd;
+            g.rb[hour] = beam_ratio_rb(lat_rad, decl, w, tilt_rad, surface_azimuth_rad);
+        }
+        g
+    }
+
+    /// Splits a daily global horizontal total into 24 hourly (global, diffuse) horizontal
+    /// totals, J/m² per hour, renormalised so the global values sum to the daily total.
+    fn split(&self, daily_global_horizontal_j_per_m2: f64) -> ([f64; 24], [f64; 24]) {
+        let mut global = [0.0; 24];
+        let mut diffuse = [0.0; 24];
+        // `max` also maps NaN to 0.
+        let h = daily_global_horizontal_j_per_m2.max(0.0);
+        if h <= 0.0 {
+            return (global, diffuse);
+        }
+        let diffuse_fraction = if self.h0 > 0.0 {
+            erbs_daily_diffuse_fraction(h / self.h0, self.ws)
+        } else {
+            1.0
+        };
+        let hd = diffuse_fraction * h;
+        if self.sum_rt <= 0.0 || self.sum_rd <= 0.0 {
+            // No hour midpoint lies in daylight (day shorter than one hour, or polar night with
+            // a non-zero reading): share the total between the two hours either side of solar
+            // noon, all as diffuse since the sun is at the horizon.
+            for hour in [11, 12] {
+                global[hour] = h / 2.0;
+                diffuse[hour] = h / 2.0;
+            }
+            return (global, diffuse);
+        }
+        for hour in 0..24 {
+            global[hour] = self.rt[hour] * (h / self.sum_rt);
+            diffuse[hour] = (self.rd[hour] * hd / self.sum_rd).min(global[hour]);
+        }
+        (global, diffuse)
+    }
+
+    /// Mean irradiance on the array plane (W/m²) for each clock hour, from the day's global
+    /// horizontal total (J/m²): the method of [`hourly_plane_irradiance_w_per_m2`].
+    pub fn plane_irradiance_w_per_m2(&self, daily_global_horizontal_j_per_m2: f64) -> [f64; 24] {
+        let (global, diffuse) = self.split(daily_global_horizontal_j_per_m2);
+        let mut plane = [0.0; 24];
+        for hour in 0..24 {
+            let i = global[hour];
+            if i <= 0.0 {
+                continue;
+            }
+            let id = diffuse[hour];
+            let ib = (i - id).max(0.0);
+            let rb = if ib > 0.0 { self.rb[hour] } else { 0.0 };
+            plane[hour] = isotropic_plane_irradiance(ib, id, rb, self.tilt_rad, self.albedo)
+                / SECONDS_PER_HOUR;
+        }
+        plane
+    }
+}
+
 /// Splits a daily global horizontal total into 24 hourly (global, diffuse) horizontal totals,
 /// J/m² per hour, renormalised so the global values sum to the daily total.
 fn split_day_j_per_m2(
@@ -310,51 +420,7 @@ fn split_day_j_per_m2(
     day_of_year: u32,
     daily_global_horizontal_j_per_m2: f64,
 ) -> ([f64; 24], [f64; 24]) {
-    let mut global = [0.0; 24];
-    let mut diffuse = [0.0; 24];
-    // `max` also maps NaN to 0.
-    let h = daily_global_horizontal_j_per_m2.max(0.0);
-    if h <= 0.0 {
-        return (global, diffuse);
-    }
-    let decl = declination_rad(day_of_year);
-    let ws = sunset_hour_angle_rad(lat_rad, decl);
-    let h0 = extraterrestrial_daily_j_per_m2(lat_rad, day_of_year);
-    let diffuse_fraction = if h0 > 0.0 {
-        erbs_daily_diffuse_fraction(h / h0, ws)
-    } else {
-        1.0
-    };
-    let hd = diffuse_fraction * h;
-
-    let mut sum_rt = 0.0;
-    let mut sum_rd = 0.0;
-    for hour in 0..24 {
-        let w = midpoint_hour_angle_rad(hour);
-        let rt = collares_pereira_rabl_rt(w, ws);
-        let rd = liu_jordan_rd(w, ws);
-        global[hour] = rt;
-        diffuse[hour] = rd;
-        sum_rt += rt;
-        sum_rd += rd;
-    }
-    if sum_rt <= 0.0 || sum_rd <= 0.0 {
-        // No hour midpoint lies in daylight (day shorter than one hour, or polar night with a
-        // non-zero reading): share the total between the two hours either side of solar noon,
-        // all as diffuse since the sun is at the horizon.
-        global = [0.0; 24];
-        diffuse = [0.0; 24];
-        for hour in [11, 12] {
-            global[hour] = h / 2.0;
-            diffuse[hour] = h / 2.0;
-        }
-        return (global, diffuse);
-    }
-    for hour in 0..24 {
-        global[hour] *= h / sum_rt;
-        diffuse[hour] = (diffuse[hour] * hd / sum_rd).min(global[hour]);
-    }
-    (global, diffuse)
+    DayGeometry::new(lat_rad, day_of_year, 0.0, 0.0, 0.0).split(daily_global_horizontal_j_per_m2)
 }
 
 /// Mean global horizontal irradiance (W/m²) for each clock hour of a day, from the day's total.
@@ -403,31 +469,8 @@ pub fn hourly_plane_irradiance_w_per_m2(
     surface_azimuth_rad: f64,
     albedo: f64,
 ) -> [f64; 24] {
-    let (global, diffuse) =
-        split_day_j_per_m2(lat_rad, day_of_year, daily_global_horizontal_j_per_m2);
-    let decl = declination_rad(day_of_year);
-    let mut plane = [0.0; 24];
-    for hour in 0..24 {
-        let i = global[hour];
-        if i <= 0.0 {
-            continue;
-        }
-        let id = diffuse[hour];
-        let ib = (i - id).max(0.0);
-        let rb = if ib > 0.0 {
-            beam_ratio_rb(
-                lat_rad,
-                decl,
-                midpoint_hour_angle_rad(hour),
-                tilt_rad,
-                surface_azimuth_rad,
-            )
-        } else {
-            0.0
-        };
-        plane[hour] = isotropic_plane_irradiance(ib, id, rb, tilt_rad, albedo) / SECONDS_PER_HOUR;
-    }
-    plane
+    DayGeometry::new(lat_rad, day_of_year, tilt_rad, surface_azimuth_rad, albedo)
+        .plane_irradiance_w_per_m2(daily_global_horizontal_j_per_m2)
 }
 
 /// Mean irradiance on the array plane (W/m²) for one hour of measured (or weather-file) global

@@ -174,13 +174,65 @@ impl PumpTables {
         }
     }
 
-    fn grid(&self, s_past_m: f64) -> (usize, f64) {
+    /// Position of s_past (m) on the grid: the point below and the fraction to the next.
+    pub fn grid(&self, s_past_m: f64) -> (usize, f64) {
         if self.step_m <= 0.0 {
             return (0, 0.0);
         }
         let x = (s_past_m.max(0.0) / self.step_m).min((OFFSET_POINTS - 1) as f64);
-        let k = (x.floor() as usize).min(OFFSET_POINTS - 2);
+        // x ≥ 0, so truncation is the floor
+        let k = (x as usize).min(OFFSET_POINTS - 2);
         (k, x - k as f64)
+    }
+
+    /// Both halves of the hourly solar solve from one search per table, at grid position `g`
+    /// (from [`Self::grid`]): the flow [`Self::flow`] gives (to choose how many units run),
+    /// and the operating point [`Self::point`] gives, without head and speed (`None`: no
+    /// delivery). Variable-speed tables only; otherwise `(0, None)`.
+    pub fn variable_at(&self, n: u32, power_w: f64, g: (usize, f64)) -> (f64, Option<Point>) {
+        let Some(UnitsTable::Variable(v)) = self.by_units.get((n as usize).wrapping_sub(1)) else {
+            return (0.0, None);
+        };
+        if power_w < self.start_power_w * n as f64 {
+            return (0.0, None);
+        }
+        let (k, f) = g;
+        let lite = |(q, p, beyond): (f64, f64, bool)| Point {
+            flow_m3_per_s: q,
+            power_w: p,
+            head_m: 0.0,
+            speed_ratio: 0.0,
+            beyond_table: beyond,
+        };
+        let a = v[k]
+            .as_ref()
+            .and_then(|t| t.flow_and_power(power_w))
+            .map(lite);
+        let qa = a.map_or(0.0, |p| p.flow_m3_per_s);
+        if f <= 0.0 || self.step_m <= 0.0 {
+            return (qa, a);
+        }
+        let b = v[k + 1]
+            .as_ref()
+            .and_then(|t| t.flow_and_power(power_w))
+            .map(lite);
+        let qb = b.map_or(0.0, |p| p.flow_m3_per_s);
+        let q = qa + f * (qb - qa);
+        let pt = match (a, b) {
+            (Some(a), Some(b)) => Some(Point {
+                flow_m3_per_s: q,
+                power_w: a.power_w + f * (b.power_w - a.power_w),
+                beyond_table: a.beyond_table || b.beyond_table,
+                ..a
+            }),
+            (Some(a), None) => Some(Point {
+                flow_m3_per_s: a.flow_m3_per_s * (1.0 - f),
+                power_w: a.power_w * (1.0 - f),
+                ..a
+            }),
+            (None, _) => None,
+        };
+        (q, pt)
     }
 
     /// Total flow (m³/s) of `n` variable-speed units sharing `power_w` with past drawdown

@@ -122,15 +122,24 @@ struct PvConsts {
     gamma: f64,
     noct: f64,
     derate: f64,
+    /// Sun–array geometry of each day of the year (the same for every weather year).
+    days: Vec<solar::DayGeometry>,
 }
 
 impl PvConsts {
     fn new(s: &Scheme, sol: &Solar) -> PvConsts {
+        let lat_rad = s.info.latitude_deg.to_radians();
+        let tilt_rad = sol.tilt_deg.to_radians();
+        let az_rad = surface_azimuth_rad(sol.facing_azimuth_deg);
+        let albedo = sol.ground_albedo;
         PvConsts {
-            lat_rad: s.info.latitude_deg.to_radians(),
-            tilt_rad: sol.tilt_deg.to_radians(),
-            az_rad: surface_azimuth_rad(sol.facing_azimuth_deg),
-            albedo: sol.ground_albedo,
+            lat_rad,
+            tilt_rad,
+            az_rad,
+            albedo,
+            days: (0..DAYS_IN_YEAR)
+                .map(|d| solar::DayGeometry::new(lat_rad, doy(d), tilt_rad, az_rad, albedo))
+                .collect(),
             gamma: sol.temperature_coefficient_per_c,
             noct: sol.noct_c,
             derate: solar::derate_chain(
@@ -158,14 +167,7 @@ fn solar_year_from_daily(
     let mut plane_sum = 0.0;
     for (d, h_day) in daily_j_per_m2.iter().enumerate().take(DAYS_IN_YEAR) {
         let m = month_of_day(d);
-        let g = solar::hourly_plane_irradiance_w_per_m2(
-            pv.lat_rad,
-            doy(d),
-            *h_day,
-            pv.tilt_rad,
-            pv.az_rad,
-            pv.albedo,
-        );
+        let g = pv.days[d].plane_irradiance_w_per_m2(*h_day);
         for (h, gh) in g.iter().enumerate() {
             w[d * 24 + h] = pv.dc(*gh, air_c[m]);
             plane_sum += gh;

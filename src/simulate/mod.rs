@@ -100,6 +100,29 @@ impl Totals {
             ..Default::default()
         }
     }
+    /// The year's totals from its months (sums; the lowest level is the least).
+    pub fn sum(months: &[Totals]) -> Totals {
+        let mut a = Totals::new();
+        for t in months {
+            a.demand_m3 += t.demand_m3;
+            a.delivered_m3 += t.delivered_m3;
+            a.unmet_m3 += t.unmet_m3;
+            a.pumped_m3 += t.pumped_m3;
+            a.overflow_m3 += t.overflow_m3;
+            a.shortfall_hours += t.shortfall_hours;
+            a.pump_run_hours += t.pump_run_hours;
+            a.energy_kwh += t.energy_kwh;
+            a.generator_fuel_l += t.generator_fuel_l;
+            a.grid_energy_kwh += t.grid_energy_kwh;
+            a.generator_energy_kwh += t.generator_energy_kwh;
+            a.solar_energy_kwh += t.solar_energy_kwh;
+            a.hand_pumped_m3 += t.hand_pumped_m3;
+            a.ram_pumped_m3 += t.ram_pumped_m3;
+            a.lowest_level_fraction = a.lowest_level_fraction.min(t.lowest_level_fraction);
+        }
+        a
+    }
+
     pub fn demand_met_fraction(&self) -> f64 {
         if self.demand_m3 > 0.0 {
             (self.delivered_m3 / self.demand_m3).clamp(0.0, 1.0)
@@ -229,8 +252,8 @@ pub struct HorizonRow {
 struct RamUnit {
     /// Total delivery (m³/s) with n units running, index n.
     flow_by_units: Vec<f64>,
-    drive_flow_m3_per_s: f64,
-    stream: usize,
+    /// Rams the month's stream flow can drive, per month.
+    drivable_by_month: [u32; 12],
 }
 
 /// Everything prepared for a scheme that does not depend on the design.
@@ -246,11 +269,58 @@ pub struct Model {
     rams: Vec<Option<RamUnit>>,
     /// Per-unit hand pump flow (m³/s) for each pump type (0 for others).
     hand_flow: Vec<f64>,
+    /// Safe yield of each borehole, m³/s.
+    safe_yield: Vec<f64>,
+    /// Month (0–11) of each day of the year.
+    day_month: [u8; 365],
+    /// Indices of the motor (curve), hand and ram pump types.
+    motor_pumps: Vec<usize>,
+    hand_pumps: Vec<usize>,
+    ram_pumps: Vec<usize>,
     /// The operating rules, stated with every result.
     pub rules: Vec<String>,
     /// Year-simulations run with this model (for the search's report).
     counter: std::sync::atomic::AtomicUsize,
+    /// Results of years already run (a year is a pure function of its key).
+    memo: std::sync::Mutex<std::collections::HashMap<YearKey, Memo>>,
 }
+
+/// What identifies one simulated year: the design, the demand year, the weather year and the
+/// scenario.
+#[derive(Debug, Clone, PartialEq, Eq, Hash)]
+struct YearKey {
+    tank_bits: u64,
+    array_bits: u64,
+    units: Vec<u32>,
+    year_offset: u32,
+    weather: usize,
+    demand_bits: u64,
+    yield_bits: u64,
+}
+
+impl YearKey {
+    fn new(d: &Design, year_offset: u32, weather: usize, sc: &Scenario) -> YearKey {
+        YearKey {
+            tank_bits: d.tank_m3.to_bits(),
+            array_bits: d.array_w.to_bits(),
+            units: d.units.clone(),
+            year_offset,
+            weather,
+            demand_bits: sc.demand_factor.to_bits(),
+            yield_bits: sc.yield_factor.to_bits(),
+        }
+    }
+}
+
+/// A remembered year: the whole result, or only that it missed the target (an early stop).
+#[derive(Debug, Clone)]
+enum Memo {
+    Full(Box<YearResult>),
+    MissedTarget,
+}
+
+/// Most years remembered per model (beyond it years are simply run again).
+const MEMO_LIMIT: usize = 100_000;
 
 impl Model {
     /// Prepares a scheme with the irradiation as given.
@@ -338,10 +408,13 @@ impl Model {
                         }
                         flows.push(q);
                     }
+                    let drivable_by_month = std::array::from_fn(|month| {
+                        let flow = st.flow_m3_per_s * st.monthly_flow_factors[month];
+                        (flow / drive_flow_m3_per_s + 1e-9).floor().max(0.0) as u32
+                    });
                     ram = Some(RamUnit {
                         flow_by_units: flows,
-                        drive_flow_m3_per_s: *drive_flow_m3_per_s,
-                        stream: p.source_index,
+                        drivable_by_month,
                     });
                 }
                 PumpKind::Hand {
@@ -381,6 +454,16 @@ impl Model {
             .as_ref()
             .map_or([false; 24], |g| inputs::hour_mask(&g.pumping_hours));
         let rules = operating_rules(&s);
+        let safe_yield = s
+            .boreholes
+            .iter()
+            .map(|b| b.safe_yield_m3_per_s())
+            .collect();
+        let motor_pumps = (0..tables.len()).filter(|i| tables[*i].is_some()).collect();
+        let hand_pumps = (0..s.pumps.len())
+            .filter(|i| s.pumps[*i].drive == DriveKind::Hand)
+            .collect();
+        let ram_pumps = (0..rams.len()).filter(|i| rams[*i].is_some()).collect();
         Ok(Model {
             shape: inputs::demand_shape(&s),
             scheme: s,
@@ -392,8 +475,14 @@ impl Model {
             kernels,
             rams,
             hand_flow,
+            safe_yield,
+            day_month: std::array::from_fn(|d| month_of_day(d) as u8),
+            motor_pumps,
+            hand_pumps,
+            ram_pumps,
             rules,
             counter: std::sync::atomic::AtomicUsize::new(0),
+            memo: Default::default(),
         })
     }
 
@@ -445,6 +534,10 @@ impl Model {
 
     /// One year under a scenario. With `abort`, the run stops as soon as the year is sure to
     /// miss the target (the result is then marked `aborted` and its figures are partial).
+    ///
+    /// Years without the hourly series are remembered: asking again for the same design, year,
+    /// weather year and scenario returns the remembered result without running it again (the
+    /// count of year-simulations counts each distinct year once).
     pub fn run_year_with(
         &self,
         design: &Design,
@@ -454,8 +547,94 @@ impl Model {
         sc: &Scenario,
         abort: Option<Abort>,
     ) -> YearResult {
+        if keep_hourly {
+            self.count_one();
+            return self.simulate_year(design, year_offset, weather, true, sc, abort);
+        }
+        let key = YearKey::new(design, year_offset, weather, sc);
+        match self.memo_get(&key) {
+            Some(Memo::Full(r)) => return *r,
+            Some(Memo::MissedTarget) if abort.is_some() => {
+                self.count_one();
+                return self.simulate_year(design, year_offset, weather, false, sc, abort);
+            }
+            _ => {}
+        }
+        let r = self.simulate_year(design, year_offset, weather, false, sc, abort);
+        let entry = if r.aborted {
+            Memo::MissedTarget
+        } else {
+            Memo::Full(Box::new(r.clone()))
+        };
+        self.memo_put(key, entry);
+        r
+    }
+
+    /// True when the year meets the scheme's targets; stops the run as soon as it has missed
+    /// them, and remembers the answer (see [`Self::run_year_with`]).
+    pub fn year_passes(
+        &self,
+        design: &Design,
+        year_offset: u32,
+        weather: usize,
+        sc: &Scenario,
+        abort: Abort,
+    ) -> bool {
+        let key = YearKey::new(design, year_offset, weather, sc);
+        match self.memo_get(&key) {
+            Some(Memo::Full(r)) => return year_meets_target(&self.scheme, &r),
+            Some(Memo::MissedTarget) => return false,
+            None => {}
+        }
+        let r = self.simulate_year(design, year_offset, weather, false, sc, Some(abort));
+        let ok = year_meets_target(&self.scheme, &r);
+        let entry = if r.aborted {
+            Memo::MissedTarget
+        } else {
+            Memo::Full(Box::new(r))
+        };
+        self.memo_put(key, entry);
+        ok
+    }
+
+    fn count_one(&self) {
         self.counter
             .fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+    }
+
+    fn memo_get(&self, key: &YearKey) -> Option<Memo> {
+        let memo = self.memo.lock().unwrap_or_else(|e| e.into_inner());
+        memo.get(key).cloned()
+    }
+
+    /// Remembers a year; counts it as a year-simulation unless an equal answer was already
+    /// there (two threads that ran the same year count it once, so the count is the same on
+    /// every run).
+    fn memo_put(&self, key: YearKey, entry: Memo) {
+        let mut memo = self.memo.lock().unwrap_or_else(|e| e.into_inner());
+        let new_kind = matches!(
+            (memo.get(&key), &entry),
+            (None, _) | (Some(Memo::MissedTarget), Memo::Full(_))
+        );
+        if new_kind {
+            self.count_one();
+            if memo.len() < MEMO_LIMIT || memo.contains_key(&key) {
+                memo.insert(key, entry);
+            }
+        }
+    }
+
+    /// Runs one year without consulting or filling the memory of years already run (what the
+    /// benchmarks time).
+    pub fn simulate_year(
+        &self,
+        design: &Design,
+        year_offset: u32,
+        weather: usize,
+        keep_hourly: bool,
+        sc: &Scenario,
+        abort: Option<Abort>,
+    ) -> YearResult {
         let dd = daily_demand(&self.scheme, year_offset);
         let mut st = State::new(
             self,
@@ -479,15 +658,14 @@ impl Model {
         for h in 0..HOURS_IN_YEAR {
             st.step(self, h, hourly.as_mut());
             if abort.is_some_and(|a| {
-                st.annual.shortfall_hours as f64 > a.max_shortfall_hours
-                    || st.annual.unmet_m3 > a.max_unmet_m3
+                st.short_hours as f64 > a.max_shortfall_hours || st.unmet_m3 > a.max_unmet_m3
             }) {
                 aborted = true;
                 break;
             }
         }
         let s = &self.scheme;
-        let annual = st.annual;
+        let annual = Totals::sum(&st.months);
         let motor_pumped = annual.pumped_m3 - annual.hand_pumped_m3 - annual.ram_pumped_m3;
         let domestic_share = if dd.consumed_m3_per_day > 0.0 {
             dd.domestic_m3_per_day / dd.consumed_m3_per_day
@@ -685,6 +863,35 @@ pub fn operating_rules(s: &Scheme) -> Vec<String> {
     r
 }
 
+/// Drawdown left by earlier pumping at borehole b, m: Theis superposition over the flow ring
+/// `q_hist` (doubled, see [`State`]) plus the tail at the mean rate of the last days.
+fn past_drawdown(
+    m: &Model,
+    b: usize,
+    q_hist: &[f64; 2 * KERNEL_HOURS],
+    hist_pos: usize,
+    day_total_m3: f64,
+) -> f64 {
+    let Some(k) = &m.kernels[b] else {
+        return 0.0;
+    };
+    // hours 23 … 1 ago, oldest first, against the kernel in the same order
+    let past = &q_hist[hist_pos + 1..hist_pos + KERNEL_HOURS];
+    // four partial sums (independent chains of additions, so the sum pipelines)
+    let mut acc = [0.0f64; 4];
+    let (qs, qr) = past.as_chunks::<4>();
+    let (ks, kr) = k.k_rev.as_chunks::<4>();
+    for (q4, k4) in qs.iter().zip(ks) {
+        for j in 0..4 {
+            acc[j] += q4[j] * k4[j];
+        }
+    }
+    let tail: f64 = qr.iter().zip(kr).map(|(q, c)| q * c).sum();
+    let s = (acc[0] + acc[1]) + (acc[2] + acc[3]) + tail;
+    let mean_q = day_total_m3 / (TAIL_DAYS as f64 * 86_400.0);
+    s + mean_q * k.tail
+}
+
 /// The state of one year's run.
 struct State<'a> {
     design: &'a Design,
@@ -702,8 +909,11 @@ struct State<'a> {
     day_total: Vec<f64>,
     today: Vec<f64>,
     hist_pos: usize,
-    annual: Totals,
     months: [Totals; 12],
+    /// Running annual shortfall hours and unmet m³ (for the early stop); the other annual
+    /// totals are the sums of the months.
+    short_hours: u32,
+    unmet_m3: f64,
     spell: u32,
     longest_spell: u32,
     min_margin: Option<f64>,
@@ -735,8 +945,9 @@ impl<'a> State<'a> {
             day_total: vec![0.0; nb],
             today: vec![0.0; nb],
             hist_pos: 0,
-            annual: Totals::new(),
             months: [Totals::new(); 12],
+            short_hours: 0,
+            unmet_m3: 0.0,
             spell: 0,
             longest_spell: 0,
             min_margin: None,
@@ -752,8 +963,9 @@ impl<'a> State<'a> {
     }
 
     fn reset_totals(&mut self) {
-        self.annual = Totals::new();
         self.months = [Totals::new(); 12];
+        self.short_hours = 0;
+        self.unmet_m3 = 0.0;
         self.spell = 0;
         self.longest_spell = 0;
         self.min_margin = None;
@@ -763,40 +975,31 @@ impl<'a> State<'a> {
         self.beyond_hours = 0;
     }
 
-    /// Drawdown left by earlier pumping at borehole b, m.
-    fn past_drawdown(&self, m: &Model, b: usize) -> f64 {
-        let Some(k) = &m.kernels[b] else {
-            return 0.0;
-        };
-        // hours 23 … 1 ago, oldest first, against the kernel in the same order
-        let past = &self.q_hist[b][self.hist_pos + 1..self.hist_pos + KERNEL_HOURS];
-        let s: f64 = past.iter().zip(&k.k_rev).map(|(q, c)| q * c).sum();
-        let mean_q = self.day_total[b] / (TAIL_DAYS as f64 * 86_400.0);
-        s + mean_q * k.tail
-    }
-
     fn step(&mut self, m: &Model, h: usize, hourly: Option<&mut Hourly>) {
         let s = &m.scheme;
+        let keep_hourly = hourly.is_some();
         let hour = (h % 24) as u8;
-        let month = month_of_day(h / 24);
+        let month = m.day_month[h / 24] as usize;
         let demand = self.daily_demand_m3 * m.shape[h];
         let nb = s.boreholes.len();
         // remaining safe yield this hour (m³/s), and the hour's flows per borehole
-        let mut cap = std::mem::take(&mut self.cap);
-        let mut bh_hand = std::mem::take(&mut self.bh_hand);
-        let mut bh_motor = std::mem::take(&mut self.bh_motor);
-        for (c, b) in cap.iter_mut().zip(&s.boreholes) {
-            *c = b.safe_yield_m3_per_s() * self.yield_factor;
+        let cap = &mut self.cap;
+        let bh_hand = &mut self.bh_hand;
+        let bh_motor = &mut self.bh_motor;
+        // one loop (a `fill` of these short vectors would be a library call every hour)
+        for (b, y) in m.safe_yield.iter().enumerate() {
+            cap[b] = y * self.yield_factor;
+            bh_hand[b] = 0.0;
+            bh_motor[b] = 0.0;
         }
-        bh_hand.fill(0.0);
-        bh_motor.fill(0.0);
 
         // hand pumps serve demand directly
         let mut hand_served = 0.0;
         if m.hand_mask[hour as usize] {
-            for (i, p) in s.pumps.iter().enumerate() {
+            for &i in &m.hand_pumps {
+                let p = &s.pumps[i];
                 let n = self.design.units.get(i).copied().unwrap_or(0);
-                if p.drive != DriveKind::Hand || n == 0 {
+                if n == 0 {
                     continue;
                 }
                 let b = p.source_index;
@@ -839,7 +1042,8 @@ impl<'a> State<'a> {
         let mut speed = 0.0;
         let mut depth_rec: Option<f64> = None;
         if self.pumps_on {
-            for (i, p) in s.pumps.iter().enumerate() {
+            for &i in &m.motor_pumps {
+                let p = &s.pumps[i];
                 let n_inst = self.design.units.get(i).copied().unwrap_or(0);
                 let Some(t) = &m.tables[i] else { continue };
                 if n_inst == 0 {
@@ -855,7 +1059,7 @@ impl<'a> State<'a> {
                 if pool_now <= 0.0 || pool_now < t.start_power_w {
                     continue; // no drive power for this type this hour
                 }
-                let s_past = self.past_drawdown(m, b);
+                let s_past = past_drawdown(m, b, &self.q_hist[b], self.hist_pos, self.day_total[b]);
                 if s_past > t.max_offset_m {
                     self.dry_run_hours += 1;
                     continue;
@@ -869,17 +1073,21 @@ impl<'a> State<'a> {
                 let mut best: Option<(u32, hydraulics::Point)> = None;
                 if variable {
                     // how many units run: the count that delivers the most water
-                    let mut best_n = 0;
+                    let g = t.grid(s_past);
                     let mut best_q = 0.0;
                     for n in 1..=n_inst {
-                        let q = t.flow(n, *pool, s_past);
+                        let (q, pt) = t.variable_at(n, *pool, g);
                         if q > best_q {
                             best_q = q;
-                            best_n = n;
+                            best = pt.map(|pt| (n, pt));
                         }
                     }
-                    if best_n > 0 {
-                        best = t.point(best_n, *pool, s_past).map(|pt| (best_n, pt));
+                    // head and speed only for the hourly record
+                    if let (Some((n, pt)), true) = (best.as_mut(), keep_hourly)
+                        && let Some(full) = t.point(*n, *pool, s_past)
+                    {
+                        pt.head_m = full.head_m;
+                        pt.speed_ratio = full.speed_ratio;
                     }
                 } else {
                     for n in (1..=n_inst).rev() {
@@ -943,13 +1151,12 @@ impl<'a> State<'a> {
 
         // rams run continuously
         let mut ram_q = 0.0;
-        for (i, r) in m.rams.iter().enumerate() {
-            let Some(r) = r else { continue };
+        for &i in &m.ram_pumps {
+            let Some(r) = &m.rams[i] else { continue };
             let n_inst = self.design.units.get(i).copied().unwrap_or(0);
-            let stream = &s.streams[r.stream];
-            let flow = stream.flow_m3_per_s * stream.monthly_flow_factors[month];
-            let n_drive = (flow / r.drive_flow_m3_per_s + 1e-9).floor() as u32;
-            let n = n_inst.min(n_drive).min(r.flow_by_units.len() as u32 - 1);
+            let n = n_inst
+                .min(r.drivable_by_month[month])
+                .min(r.flow_by_units.len() as u32 - 1);
             ram_q += r.flow_by_units[n as usize];
         }
 
@@ -986,7 +1193,8 @@ impl<'a> State<'a> {
                     } else {
                         let t_off = band / drain;
                         let t_on = band / net;
-                        let cycles = (left / (t_off + t_on)).floor();
+                        // non-negative and small, so truncation is the floor
+                        let cycles = ((left / (t_off + t_on)) as u64) as f64;
                         let t = left - cycles * (t_off + t_on);
                         run_fraction += cycles * t_on;
                         if t <= t_off {
@@ -1032,9 +1240,6 @@ impl<'a> State<'a> {
             self.today[b] += mean_q * 3600.0;
         }
         self.hist_pos = (self.hist_pos + 1) % KERNEL_HOURS;
-        self.cap = cap;
-        self.bh_hand = bh_hand;
-        self.bh_motor = bh_motor;
         if hour == 23 {
             let day = h / 24;
             for b in 0..nb {
@@ -1069,7 +1274,10 @@ impl<'a> State<'a> {
             0.0
         };
         let short_hour = shortfall > 1e-6;
-        for t in [&mut self.annual, &mut self.months[month]] {
+        self.short_hours += u32::from(short_hour);
+        self.unmet_m3 += shortfall;
+        {
+            let t = &mut self.months[month];
             t.demand_m3 += demand;
             t.delivered_m3 += delivered;
             t.unmet_m3 += shortfall;

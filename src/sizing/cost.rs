@@ -104,18 +104,44 @@ fn item_pw(capital: f64, life: f64, horizon: f64, i: f64) -> (f64, f64) {
     (repl, salv)
 }
 
-/// A lower bound of the NPV that needs no simulation: capital, replacements and salvage only
-/// (every operating cost is ≥ 0).
+/// Fixed maintenance of a design per year: the share of capital plus the per-unit pump
+/// maintenance (neither depends on how the design runs).
+fn fixed_maintenance_per_year(s: &Scheme, d: &Design, capital: f64) -> f64 {
+    s.costs.maintenance_fraction_of_capital_per_year * capital
+        + s.pumps
+            .iter()
+            .zip(&d.units)
+            .map(|(p, n)| p.maintenance_per_unit_year * *n as f64)
+            .sum::<f64>()
+}
+
+/// The part of the NPV that needs no simulation: capital, replacements, salvage and fixed
+/// maintenance. A lower bound of the NPV (fuel, grid energy and generator run-hour
+/// maintenance are ≥ 0), and the NPV itself when the design runs no generator or grid pump.
+/// Non-decreasing in tank size, array size and units (every unit cost is ≥ 0).
 pub fn npv_lower_bound(s: &Scheme, d: &Design) -> f64 {
-    let h = s.info.horizon_years as f64;
+    let h = s.info.horizon_years.max(1);
     let i = s.costs.discount_rate;
-    capital_items(s, d)
+    let mut capital = 0.0;
+    let mut pw = 0.0;
+    for (_, cap, life) in capital_items(s, d) {
+        let (r, sv) = item_pw(cap, life, h as f64, i);
+        capital += cap;
+        pw += cap + r - sv;
+    }
+    let maint = fixed_maintenance_per_year(s, d, capital);
+    let pwf: f64 = (1..=h)
+        .map(|y| money::present_worth_factor_single(i, y as f64))
+        .sum();
+    pw + maint * pwf
+}
+
+/// True when the design's NPV needs no simulation (no generator or grid pump installed).
+pub fn npv_needs_no_simulation(s: &Scheme, d: &Design) -> bool {
+    !s.pumps
         .iter()
-        .map(|(_, cap, life)| {
-            let (r, sv) = item_pw(*cap, *life, h, i);
-            cap + r - sv
-        })
-        .sum()
+        .zip(&d.units)
+        .any(|(p, n)| *n > 0 && matches!(p.drive, DriveKind::Generator | DriveKind::Grid))
 }
 
 /// Life-cycle cost with operation interpolated between the first and the horizon year.
@@ -142,12 +168,7 @@ pub fn life_cycle_cost(
             present_worth: cap + r - sv,
         });
     }
-    let fixed_maint: f64 = s.costs.maintenance_fraction_of_capital_per_year * capital
-        + s.pumps
-            .iter()
-            .zip(&d.units)
-            .map(|(p, n)| p.maintenance_per_unit_year * *n as f64)
-            .sum::<f64>();
+    let fixed_maint = fixed_maintenance_per_year(s, d, capital);
     let fuel_price = s.generator.as_ref().map_or(0.0, |g| g.fuel_price_per_l) * fuel_price_factor;
     let tariff = s.grid.as_ref().map_or(0.0, |g| g.tariff_per_kwh);
     let (mut maint_pw, mut energy_pw) = (0.0, 0.0);

@@ -3,18 +3,26 @@
 //! the cost–reliability front, the horizon staging and the sensitivity table.
 //!
 //! `simulate` is used as a black box. Structure used instead of brute force:
-//! * Monotonicity (assumed, and tested on the samples): for a fixed pump set and array,
-//!   shortfall never increases as the tank grows, so the smallest adequate tank is found by
-//!   bisection over the candidate sizes; and a larger array never needs a larger tank, so the
-//!   bisection for the next array size starts from the previous answer.
-//! * A cost lower bound that needs no simulation (capital, replacements, salvage) prunes pump
-//!   sets and arrays that cannot beat the best design found so far.
+//! * Monotonicity (assumed, and tested on the samples): for a fixed pump set, shortfall never
+//!   increases as the tank or the array grows. So the smallest adequate tank is found by
+//!   bisection over the candidate sizes, and over the array sizes a branch and bound brackets
+//!   the tank of every array between the tanks of a larger and a smaller array
+//!   ([`search_pump_set`]); runs of arrays whose cost lower bound cannot beat the cheapest
+//!   design found are never simulated.
+//! * A cost lower bound that needs no simulation (capital, replacements, salvage, fixed
+//!   maintenance; the whole NPV when no generator or grid pump is installed) prunes pump sets
+//!   and arrays.
 //! * A weather ensemble is judged by counting years that miss the target; a year stops as soon
 //!   as it has missed it, and an ensemble as soon as the answer is certain (too many years have
 //!   missed, or too few are left to change it). Years run hardest first (ranked once on the
-//!   largest design), so failing designs are found quickly.
-//! * The chosen design is confirmed at the end: it passes, and the next smaller tank fails
-//!   (this also guards the monotonicity assumption).
+//!   largest design), so failing designs are found quickly. Within one pump set the verdict of
+//!   a weather year is also inferred from the same year's verdicts for other sizes (met with a
+//!   smaller array and tank: met; missed with a larger: missed).
+//! * Every year run is remembered by the model (`Model::run_year_with`), so the report, the
+//!   alternatives, the front and the sensitivity table do not run a year twice.
+//! * The chosen design is confirmed at the end from simulated years only (no inferred
+//!   verdicts): it passes, and the next smaller tank fails (this also guards the monotonicity
+//!   assumption).
 
 pub mod cost;
 
@@ -24,7 +32,7 @@ use crate::error::Error;
 use crate::scheme::{DriveKind, JudgedOn, Scheme, TankSearch, WeatherMode};
 use crate::simulate::{
     self, Abort, Design, Ensemble, Model, RunReport, Scenario, YearResult, daily_demand,
-    meets_target, year_meets_target, years_allowed_to_fail,
+    meets_target, years_allowed_to_fail,
 };
 use cost::{CostBreakdown, Operation};
 
@@ -262,40 +270,116 @@ struct Search<'a> {
     /// Weather years in the order they are run (hardest first).
     order: Vec<usize>,
     horizon: u32,
+    /// Distinct ensemble checks run.
     evaluated: usize,
+    /// Ensemble verdicts already reached, by design and year.
+    verdicts: std::collections::HashMap<(u64, u64, Vec<u32>, u32), bool>,
+    /// Simulated verdicts of each weather year, by pump set and year: (array W, tank m³,
+    /// met the target), for inferring the verdicts of other array and tank sizes.
+    year_points: std::collections::HashMap<(Vec<u32>, u32), Vec<Vec<YearPoint>>>,
+}
+
+/// A simulated verdict of one weather year: (array W, tank m³, met the target).
+type YearPoint = (f64, f64, bool);
+
+/// The verdict of one weather year for (array, tank) implied by verdicts of the same pump set
+/// and year, if any: assuming shortfall does not increase with tank or array size, a year met
+/// with a smaller-or-equal array and tank is met, and one missed with a larger-or-equal array
+/// and tank is missed.
+fn infer_year(points: &[YearPoint], array_w: f64, tank_m3: f64) -> Option<bool> {
+    for &(a, t, ok) in points {
+        if ok && a <= array_w && t <= tank_m3 {
+            return Some(true);
+        }
+        if !ok && a >= array_w && t >= tank_m3 {
+            return Some(false);
+        }
+    }
+    None
 }
 
 impl Search<'_> {
     /// Does the design meet the target in `year`, judged on every weather year (exact,
     /// stopping as soon as the answer is certain)?
     fn passes(&mut self, d: &Design, year: u32) -> bool {
+        let key = (
+            d.tank_m3.to_bits(),
+            d.array_w.to_bits(),
+            d.units.clone(),
+            year,
+        );
+        if let Some(v) = self.verdicts.get(&key) {
+            return *v;
+        }
         self.evaluated += 1;
+        let points = self.year_points.entry((d.units.clone(), year)).or_default();
+        let m = self.m;
+        let n = m.weather_years_for(d);
+        if points.len() < n {
+            points.resize(n, Vec::new());
+        }
+        let mut new_points: Vec<(usize, bool)> = Vec::new();
+        let v = {
+            let points = &*points;
+            ensemble_passes_with(
+                m,
+                d,
+                year,
+                &self.order,
+                |w| infer_year(&points[w], d.array_w, d.tank_m3),
+                |w, ok| new_points.push((w, ok)),
+            )
+        };
+        for (w, ok) in new_points {
+            points[w].push((d.array_w, d.tank_m3, ok));
+        }
+        self.verdicts.insert(key, v);
+        v
+    }
+
+    /// As [`Self::passes`] but from simulated years only (no verdict inferred from other
+    /// designs): used to confirm the answer.
+    fn passes_exact(&mut self, d: &Design, year: u32) -> bool {
         ensemble_passes(self.m, d, year, &self.order)
     }
 
-    /// Smallest tank index in `0..=hi` that passes, by bisection (shortfall assumed
-    /// non-increasing in tank size). None when even `hi` fails.
-    fn min_tank(&mut self, units: &[u32], array_w: f64, hi: usize) -> Option<usize> {
+    /// Smallest tank index that passes, by bisection, knowing that every tank below `lo`
+    /// fails and that `hi` passes (`None`: not known; when even the largest tank fails there
+    /// is no answer). Shortfall is assumed non-increasing in tank size.
+    fn tank_in(
+        &mut self,
+        units: &[u32],
+        array_w: f64,
+        lo: usize,
+        hi: Option<usize>,
+        top_first: bool,
+    ) -> Option<usize> {
         let d = |t: f64| Design {
             tank_m3: t,
             units: units.to_vec(),
             array_w,
         };
-        if !self.passes(&d(self.tanks[hi]), self.horizon) {
+        let top = self.tanks.len() - 1;
+        // With `hi` unknown the largest tank is checked first (`top_first`: one check tells an
+        // array that cannot meet the target at all), or the bisection runs as if it passed and
+        // checks it only if the answer comes out there (one check fewer when it does not).
+        if hi.is_none() && top_first && !self.passes(&d(self.tanks[top]), self.horizon) {
             return None;
         }
-        let (mut lo, mut hi) = (0usize, hi);
-        if self.passes(&d(self.tanks[0]), self.horizon) {
-            return Some(0);
-        }
-        // invariant: lo fails, hi passes
-        while hi - lo > 1 {
+        let verified = hi.is_some() || top_first;
+        let mut hi = hi.unwrap_or(top);
+        let mut lo = lo.min(hi);
+        // invariant: every tank below lo fails, hi passes (or is the unchecked largest tank)
+        while lo < hi {
             let mid = (lo + hi) / 2;
             if self.passes(&d(self.tanks[mid]), self.horizon) {
                 hi = mid;
             } else {
-                lo = mid;
+                lo = mid + 1;
             }
+        }
+        if hi == top && !verified && !self.passes(&d(self.tanks[top]), self.horizon) {
+            return None;
         }
         Some(hi)
     }
@@ -315,34 +399,73 @@ fn year_abort(m: &Model, year: u32, sc: &Scenario) -> Abort {
 /// Exact ensemble check: true when no more weather years miss the target than the judged
 /// percentile allows. Years run in `order`; the check stops once the answer is certain.
 pub fn ensemble_passes(m: &Model, d: &Design, year: u32, order: &[usize]) -> bool {
+    ensemble_passes_with(m, d, year, order, |_| None, |_, _| {})
+}
+
+/// As [`ensemble_passes`], taking the verdict of a weather year from `known` where it gives
+/// one (no simulation), and telling `ran` the verdict of every year it simulated.
+fn ensemble_passes_with(
+    m: &Model,
+    d: &Design,
+    year: u32,
+    order: &[usize],
+    known: impl Fn(usize) -> Option<bool>,
+    mut ran: impl FnMut(usize, bool),
+) -> bool {
+    use rayon::prelude::*;
     let s = &m.scheme;
     let sc = Scenario::default();
     let n = m.weather_years_for(d);
     let allowed = years_allowed_to_fail(s.targets.judged_on, n);
     let abort = year_abort(m, year, &sc);
     let years: Vec<usize> = order.iter().copied().filter(|w| *w < n).take(n).collect();
-    let mut fails = 0;
-    let mut done = 0;
-    // a fixed number of years at a time, in parallel: the same years run on every machine,
-    // so the answer and the count of year-simulations do not depend on the core count
-    for chunk in years.chunks(ENSEMBLE_CHUNK) {
-        use rayon::prelude::*;
-        let failed = chunk
-            .par_iter()
-            .filter(|w| {
-                !year_meets_target(s, &m.run_year_with(d, year, **w, false, &sc, Some(abort)))
-            })
-            .count();
-        fails += failed;
-        done += chunk.len();
+    let (mut fails, mut done) = (0usize, 0usize);
+    // the answer is certain once too many years have failed or too few are left to matter
+    let settled = |fails: usize, done: usize| -> Option<bool> {
         if fails > allowed {
-            return false;
+            Some(false)
+        } else if fails + (n - done) <= allowed {
+            Some(true)
+        } else {
+            None
         }
-        if fails + (n - done) <= allowed {
-            return true;
+    };
+    // Years that must be simulated run a fixed number at a time, in parallel: the same years
+    // run on every machine, so the answer and the count of year-simulations do not depend on
+    // the core count.
+    let mut pending: Vec<usize> = Vec::with_capacity(ENSEMBLE_CHUNK);
+    let mut i = 0;
+    loop {
+        while pending.len() < ENSEMBLE_CHUNK && i < years.len() {
+            let w = years[i];
+            i += 1;
+            match known(w) {
+                Some(ok) => {
+                    fails += usize::from(!ok);
+                    done += 1;
+                    if let Some(v) = settled(fails, done) {
+                        return v;
+                    }
+                }
+                None => pending.push(w),
+            }
+        }
+        if pending.is_empty() {
+            return settled(fails, done).unwrap_or(true);
+        }
+        let verdicts: Vec<bool> = pending
+            .par_iter()
+            .map(|w| m.year_passes(d, year, *w, &sc, abort))
+            .collect();
+        for (w, ok) in pending.drain(..).zip(verdicts) {
+            ran(w, ok);
+            fails += usize::from(!ok);
+            done += 1;
+        }
+        if let Some(v) = settled(fails, done) {
+            return v;
         }
     }
-    true
 }
 
 /// Weather years judged at a time in an ensemble check.
@@ -358,7 +481,7 @@ fn confirm(search: &mut Search, mut d: Design) -> (Option<Design>, Option<f64>, 
     let h = search.horizon;
     let mut idx = tanks.iter().position(|t| *t == d.tank_m3).unwrap_or(0);
     let mut stepped = false;
-    while !search.passes(&d, h) {
+    while !search.passes_exact(&d, h) {
         if idx == top {
             return (None, None, stepped);
         }
@@ -371,7 +494,7 @@ fn confirm(search: &mut Search, mut d: Design) -> (Option<Design>, Option<f64>, 
             tank_m3: tanks[idx - 1],
             ..d.clone()
         };
-        if !search.passes(&smaller, h) {
+        if !search.passes_exact(&smaller, h) {
             break;
         }
         idx -= 1;
@@ -464,6 +587,123 @@ fn median_weather(e: &Ensemble) -> usize {
     idx.get(idx.len() / 2).copied().unwrap_or(0)
 }
 
+/// The cheapest designs found so far: overall, and per number of pump units in total (for the
+/// alternatives).
+#[derive(Default)]
+struct Found {
+    best: Option<(f64, Design)>,
+    per_count: std::collections::BTreeMap<u32, (f64, Design)>,
+}
+
+impl Found {
+    /// A design is worth looking for while its cost lower bound beats the cheapest design of
+    /// its own unit count (each count keeps its cheapest design for the alternatives).
+    fn worth(&self, count: u32, lower_bound: f64) -> bool {
+        let beats_best = self.best.as_ref().is_none_or(|(c, _)| lower_bound < *c);
+        let beats_count = self
+            .per_count
+            .get(&count)
+            .is_none_or(|(c, _)| lower_bound < *c);
+        beats_best || beats_count
+    }
+
+    fn offer(&mut self, cost: f64, d: &Design) {
+        let count: u32 = d.units.iter().sum();
+        if self.best.as_ref().is_none_or(|(b, _)| cost < *b) {
+            self.best = Some((cost, d.clone()));
+        }
+        if self.per_count.get(&count).is_none_or(|(b, _)| cost < *b) {
+            self.per_count.insert(count, (cost, d.clone()));
+        }
+    }
+}
+
+/// The NPV the search ranks designs by: the simulation-free part when that is the whole NPV
+/// (no generator or grid pump), else the full life-cycle cost.
+fn search_npv(m: &Model, d: &Design, median_w: usize) -> f64 {
+    if cost::npv_needs_no_simulation(&m.scheme, d) {
+        cost::npv_lower_bound(&m.scheme, d)
+    } else {
+        cost_of(m, d, &Scenario::default(), median_w, 1.0).npv
+    }
+}
+
+const TOP_FIRST_INSIDE: bool = false;
+
+/// The least-cost design of one pump set over the array sizes, by branch and bound.
+///
+/// Monotonicity assumed (see the module notes): the smallest adequate tank T(a) does not grow
+/// with the array a, and an array that fails with the largest tank fails for every smaller
+/// array. So T at the ends of a run of array sizes brackets T inside it, and the cost of any
+/// array inside is at least the cost lower bound of its smallest array with the tank of its
+/// largest. Runs that cannot beat the cheapest design found are dropped unsearched; the
+/// others are split at their middle array, whose tank is found by bisection inside the
+/// bracket.
+fn search_pump_set(
+    search: &mut Search,
+    found: &mut Found,
+    units: &[u32],
+    arrays: &[f64],
+    median_w: usize,
+) {
+    let s = &search.m.scheme;
+    let count: u32 = units.iter().sum();
+    let design = |a: f64, t: f64| Design {
+        tank_m3: t,
+        units: units.to_vec(),
+        array_w: a,
+    };
+    let top_a = arrays.len() - 1;
+    if !found.worth(
+        count,
+        cost::npv_lower_bound(s, &design(arrays[0], search.tanks[0])),
+    ) {
+        return;
+    }
+    // the largest array first: if even it fails with the largest tank, every array does
+    let Some(t_top) = search.tank_in(units, arrays[top_a], 0, None, true) else {
+        return;
+    };
+    let d = design(arrays[top_a], search.tanks[t_top]);
+    found.offer(search_npv(search.m, &d, median_w), &d);
+    // runs of arrays (lo, hi) exclusive, with the tank at each end (None below the first
+    // array: unknown; Some(None): fails even with the largest tank)
+    type End = Option<Option<usize>>;
+    let mut runs: Vec<(Option<usize>, End, usize, Option<usize>)> =
+        vec![(None, None, top_a, Some(t_top))];
+    while let Some((lo, t_lo, hi, t_hi)) = runs.pop() {
+        let first = lo.map_or(0, |l| l + 1);
+        if first >= hi {
+            continue;
+        }
+        let Some(t_hi) = t_hi else {
+            continue; // the larger end fails with the largest tank: so does every array here
+        };
+        let lb = cost::npv_lower_bound(s, &design(arrays[first], search.tanks[t_hi]));
+        if !found.worth(count, lb) {
+            continue;
+        }
+        let mid = (first + hi - 1) / 2;
+        // T(mid) lies between the tanks of the ends: T(hi) ≤ T(mid) ≤ T(lo)
+        let upper = match t_lo {
+            Some(Some(t)) => Some(t),
+            _ => None,
+        };
+        let t_mid = if upper == Some(t_hi) {
+            Some(t_hi)
+        } else {
+            search.tank_in(units, arrays[mid], t_hi, upper, TOP_FIRST_INSIDE)
+        };
+        if let Some(t) = t_mid {
+            let d = design(arrays[mid], search.tanks[t]);
+            found.offer(search_npv(search.m, &d, median_w), &d);
+        }
+        // the cheaper (smaller-array) run is searched second so the larger tightens the bound
+        runs.push((lo, t_lo, mid, t_mid));
+        runs.push((Some(mid), Some(t_mid), hi, Some(t_hi)));
+    }
+}
+
 /// Sizes the scheme.
 pub fn size(s: &Scheme) -> Result<Plan, Error> {
     let m = Model::new(s)?;
@@ -521,6 +761,8 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
         order,
         horizon,
         evaluated: 0,
+        verdicts: Default::default(),
+        year_points: Default::default(),
     };
     let median_w = median_weather(&big);
 
@@ -538,49 +780,17 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
         })
         .collect();
     order_sets.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
-    let mut best: Option<(f64, Design)> = None;
-    // cheapest design per number of pump units in total (for the alternatives)
-    let mut per_count: std::collections::BTreeMap<u32, (f64, Design)> = Default::default();
+    let mut found = Found::default();
     for (_, units) in &order_sets {
         let arrays: Vec<f64> = if uses_solar(s, units) {
             arrays_all.clone()
         } else {
             vec![0.0]
         };
-        let mut hi = top_tank;
-        for a in arrays {
-            let lb_design = Design {
-                tank_m3: tanks[0],
-                units: units.clone(),
-                array_w: a,
-            };
-            let lb = cost::npv_lower_bound(s, &lb_design);
-            let count: u32 = units.iter().sum();
-            let beats_count = per_count.get(&count).is_none_or(|(c, _)| lb < *c);
-            if best.as_ref().is_some_and(|(c, _)| lb >= *c) && !beats_count {
-                break; // larger arrays only cost more
-            }
-            let Some(t) = search.min_tank(units, a, hi) else {
-                continue;
-            };
-            hi = t;
-            let d = Design {
-                tank_m3: tanks[t],
-                units: units.clone(),
-                array_w: a,
-            };
-            let c = cost_of(m, &d, &Scenario::default(), median_w, 1.0).npv;
-            if best.as_ref().is_none_or(|(b, _)| c < *b) {
-                best = Some((c, d.clone()));
-            }
-            if per_count.get(&count).is_none_or(|(b, _)| c < *b) {
-                per_count.insert(count, (c, d.clone()));
-            }
-            if t == 0 {
-                break; // a larger array cannot need a smaller tank than the smallest
-            }
-        }
+        search_pump_set(&mut search, &mut found, units, &arrays, median_w);
     }
+    let best = found.best;
+    let per_count = found.per_count;
 
     // ---- confirm the chosen design
     let mut notes = Vec::new();
