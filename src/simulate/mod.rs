@@ -486,6 +486,11 @@ impl Model {
         })
     }
 
+    /// Forgets the years already run (so a benchmark times the simulation, not the memory).
+    pub fn forget_years(&self) {
+        self.memo.lock().unwrap_or_else(|e| e.into_inner()).clear();
+    }
+
     /// Year-simulations run so far with this model.
     pub fn simulations_run(&self) -> usize {
         self.counter.load(std::sync::atomic::Ordering::Relaxed)
