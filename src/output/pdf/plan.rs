@@ -1541,7 +1541,7 @@ fn choice_section(inp: &PlanInputs, b: &mut Vec<Block>) {
     let st = &p.stats;
     b.push(heading(2, "Search statistics"));
     b.push(para(format!(
-        "{} pump sets × {} array sizes × {} tank sizes = {} designs in the ranges; {} ensemble checks and {} year-simulations were run (bisection over tank sizes and a cost lower bound avoid the rest).",
+        "{} pump sets × {} array sizes × {} tank sizes = {} designs in the ranges; {} ensemble checks and {} year-simulations were run (bisection over tank sizes, branch and bound over array sizes and a cost lower bound avoid the rest).",
         st.pump_sets,
         st.array_sizes,
         st.tank_sizes,
@@ -1609,7 +1609,7 @@ fn method_section(inp: &PlanInputs, b: &mut Vec<Block>) {
         }
     }
     m.push("Costs: present worth of capital, replacements, salvage, maintenance and energy with end-of-year cash flows (Newnan, Eschenbach & Lavelle, Engineering Economic Analysis, ch. 5); operation in the years between the first and the horizon year is interpolated linearly; cost per m³ is the NPV over the discounted delivered volume.".into());
-    m.push("Search: least cost over pump sets, array sizes and tank sizes; the smallest adequate tank by bisection (shortfall assumed not to rise with tank size); every weather year is judged for the chosen design.".into());
+    m.push("Search: least cost over pump sets, array sizes and tank sizes; the smallest adequate tank by bisection and, over array sizes, branch and bound (shortfall assumed not to rise with tank or array size; during the search a weather year's verdict may be inferred from its verdicts at other sizes); the chosen design and the next smaller tank are confirmed from simulated weather years only.".into());
     b.push(Block::BulletList(m));
     b.push(heading(2, "Assumptions and operating rules"));
     let mut a: Vec<String> = r.rules.clone();
