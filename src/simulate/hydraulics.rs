@@ -186,8 +186,9 @@ impl PumpTables {
     }
 
     /// Both halves of the hourly solar solve from one search per table, at grid position `g`
-    /// (from [`Self::grid`]): the flow [`Self::flow`] gives (to choose how many units run),
-    /// and the operating point [`Self::point`] gives, without head and speed (`None`: no
+    /// (from [`Self::grid`]): the total flow (to choose how many units run; interpolated
+    /// between grid points, 0 where a table does not deliver), and the operating point
+    /// [`Self::point`] gives, without head and speed (`None`: no
     /// delivery). Variable-speed tables only; otherwise `(0, None)`.
     pub fn variable_at(&self, n: u32, power_w: f64, g: (usize, f64)) -> (f64, Option<Point>) {
         let Some(UnitsTable::Variable(v)) = self.by_units.get((n as usize).wrapping_sub(1)) else {
@@ -233,26 +234,6 @@ impl PumpTables {
             (None, _) => None,
         };
         (q, pt)
-    }
-
-    /// Total flow (m³/s) of `n` variable-speed units sharing `power_w` with past drawdown
-    /// s_past: the flow part of [`Self::point`] only (cheaper, for choosing how many run).
-    pub fn flow(&self, n: u32, power_w: f64, s_past_m: f64) -> f64 {
-        let Some(UnitsTable::Variable(v)) = self.by_units.get((n as usize).wrapping_sub(1)) else {
-            return self
-                .point(n, power_w, s_past_m)
-                .map_or(0.0, |p| p.flow_m3_per_s);
-        };
-        if power_w < self.start_power_w * n as f64 {
-            return 0.0;
-        }
-        let (k, f) = self.grid(s_past_m);
-        let a = v[k].as_ref().map_or(0.0, |t| t.flow_for_power(power_w));
-        if f <= 0.0 || self.step_m <= 0.0 {
-            return a;
-        }
-        let b = v[k + 1].as_ref().map_or(0.0, |t| t.flow_for_power(power_w));
-        a + f * (b - a)
     }
 
     /// Total input power (W) at which `n` variable-speed units deliver total flow q with past

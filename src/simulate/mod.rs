@@ -527,7 +527,6 @@ impl Model {
             weather,
             keep_hourly,
             &Scenario::default(),
-            None,
         )
     }
 
@@ -537,8 +536,7 @@ impl Model {
         dd.supplied_m3_per_day * sc.demand_factor * self.shape.iter().sum::<f64>()
     }
 
-    /// One year under a scenario. With `abort`, the run stops as soon as the year is sure to
-    /// miss the target (the result is then marked `aborted` and its figures are partial).
+    /// One whole year under a scenario.
     ///
     /// Years without the hourly series are remembered: asking again for the same design, year,
     /// weather year and scenario returns the remembered result without running it again (the
@@ -550,33 +548,22 @@ impl Model {
         weather: usize,
         keep_hourly: bool,
         sc: &Scenario,
-        abort: Option<Abort>,
     ) -> YearResult {
         if keep_hourly {
             self.count_one();
-            return self.simulate_year(design, year_offset, weather, true, sc, abort);
+            return self.simulate_year(design, year_offset, weather, true, sc, None);
         }
         let key = YearKey::new(design, year_offset, weather, sc);
-        match self.memo_get(&key) {
-            Some(Memo::Full(r)) => return *r,
-            Some(Memo::MissedTarget) if abort.is_some() => {
-                self.count_one();
-                return self.simulate_year(design, year_offset, weather, false, sc, abort);
-            }
-            _ => {}
+        if let Some(Memo::Full(r)) = self.memo_get(&key) {
+            return *r;
         }
-        let r = self.simulate_year(design, year_offset, weather, false, sc, abort);
-        let entry = if r.aborted {
-            Memo::MissedTarget
-        } else {
-            Memo::Full(Box::new(r.clone()))
-        };
-        self.memo_put(key, entry);
+        let r = self.simulate_year(design, year_offset, weather, false, sc, None);
+        self.remember(key, &r);
         r
     }
 
-    /// True when the year meets the scheme's targets; stops the run as soon as it has missed
-    /// them, and remembers the answer (see [`Self::run_year_with`]).
+    /// True when the year meets the scheme's targets. The run stops as soon as the year is sure
+    /// to miss them (`abort`); the answer is remembered as [`Self::run_year_with`] does.
     pub fn year_passes(
         &self,
         design: &Design,
@@ -592,14 +579,19 @@ impl Model {
             None => {}
         }
         let r = self.simulate_year(design, year_offset, weather, false, sc, Some(abort));
-        let ok = year_meets_target(&self.scheme, &r);
+        self.remember(key, &r);
+        year_meets_target(&self.scheme, &r)
+    }
+
+    /// Remembers a year run without the hourly series: whole, or (stopped early) only that it
+    /// missed the target.
+    fn remember(&self, key: YearKey, r: &YearResult) {
         let entry = if r.aborted {
             Memo::MissedTarget
         } else {
-            Memo::Full(Box::new(r))
+            Memo::Full(Box::new(r.clone()))
         };
         self.memo_put(key, entry);
-        ok
     }
 
     fn count_one(&self) {

@@ -505,7 +505,7 @@ fn confirm(search: &mut Search, mut d: Design) -> (Option<Design>, Option<f64>, 
 
 /// Operation figures of a design in a year, from its judged weather year (or the only one).
 fn operation(m: &Model, d: &Design, year: u32, weather: usize, sc: &Scenario) -> Operation {
-    let r = m.run_year_with(d, year, weather, false, sc, None);
+    let r = m.run_year_with(d, year, weather, false, sc);
     Operation {
         fuel_l: r.annual.generator_fuel_l,
         grid_kwh: r.annual.grid_energy_kwh,
@@ -628,8 +628,6 @@ fn search_npv(m: &Model, d: &Design, median_w: usize) -> f64 {
     }
 }
 
-const TOP_FIRST_INSIDE: bool = false;
-
 /// The least-cost design of one pump set over the array sizes, by branch and bound.
 ///
 /// Monotonicity assumed (see the module notes): the smallest adequate tank T(a) does not grow
@@ -692,7 +690,8 @@ fn search_pump_set(
         let t_mid = if upper == Some(t_hi) {
             Some(t_hi)
         } else {
-            search.tank_in(units, arrays[mid], t_hi, upper, TOP_FIRST_INSIDE)
+            // an inside array: no top-first check (fewer checks on the samples)
+            search.tank_in(units, arrays[mid], t_hi, upper, false)
         };
         if let Some(t) = t_mid {
             let d = design(arrays[mid], search.tanks[t]);
@@ -1097,7 +1096,7 @@ fn sensitivity(m: &Model, d: &Design, median_w: usize) -> Result<Vec<Sensitivity
         use rayon::prelude::*;
         let years: Vec<YearResult> = (0..mm.weather_years_for(d))
             .into_par_iter()
-            .map(|w| mm.run_year_with(d, h, w, false, &sc, None))
+            .map(|w| mm.run_year_with(d, h, w, false, &sc))
             .collect();
         let e = simulate::summarise(&mm.scheme, years);
         SensitivityRow {
