@@ -962,7 +962,14 @@ pub struct PowerFlow {
 pub struct PowerFlowTable {
     power_w: Vec<f64>,
     flow: Vec<f64>,
-    flow_slope: Vec<f64>,
+    /// Per interval k: [P_k, 1/(P_k+1 − P_k), c0, c1, c2, c3], the flow's Fritsch–Carlson
+    /// cubic in power form q = c0 + c1·t + c2·t² + c3·t³ with t = (P − P_k)/(P_k+1 − P_k)
+    /// (the same cubic as the Hermite form, evaluated without a division).
+    flow_cubic: Vec<[f64; 6]>,
+    /// Buckets of equal power width over P_0 … P_last, per W, and the interval holding the
+    /// start of each bucket (to find the interval of a power in a step or two).
+    bucket_per_w: f64,
+    bucket_interval: Vec<u32>,
     head: Vec<f64>,
     head_slope: Vec<f64>,
     speed: Vec<f64>,
@@ -1080,12 +1087,42 @@ impl PowerFlowTable {
             speed.push(n);
         }
         let flow_slope = fritsch_carlson_slopes(&power_w, &flow);
+        let flow_cubic = (0..samples - 1)
+            .map(|k| {
+                let w = power_w[k + 1] - power_w[k];
+                let (y0, y1, m0, m1) = (
+                    flow[k],
+                    flow[k + 1],
+                    w * flow_slope[k],
+                    w * flow_slope[k + 1],
+                );
+                [
+                    power_w[k],
+                    1.0 / w,
+                    y0,
+                    m0,
+                    3.0 * (y1 - y0) - 2.0 * m0 - m1,
+                    2.0 * (y0 - y1) + m0 + m1,
+                ]
+            })
+            .collect();
+        let buckets = 4 * (samples - 1);
+        let bucket_per_w = buckets as f64 / (power_w[samples - 1] - power_w[0]);
+        let bucket_interval = (0..buckets)
+            .map(|b| {
+                let start = power_w[0] + b as f64 / bucket_per_w;
+                let k = interval_index(samples, start.min(power_w[samples - 1]), |i| power_w[i]);
+                k.min(samples - 2) as u32
+            })
+            .collect();
         let head_slope = fritsch_carlson_slopes(&power_w, &head);
         let speed_slope = fritsch_carlson_slopes(&power_w, &speed);
         Ok(PowerFlowTable {
             power_w,
             flow,
-            flow_slope,
+            flow_cubic,
+            bucket_per_w,
+            bucket_interval,
             head,
             head_slope,
             speed,
@@ -1102,6 +1139,28 @@ impl PowerFlowTable {
     /// Total power at maximum speed, W; more than this is not used.
     pub fn max_power_w(&self) -> f64 {
         self.power_w[self.power_w.len() - 1]
+    }
+
+    /// Interval k (P_k ≤ P < P_k+1) of a power strictly inside the table, and the flow there
+    /// with t = (P − P_k)/(P_k+1 − P_k). The interval holding the start of the power's bucket
+    /// is stepped to the power's own (usually no step at all); the result is the interval a
+    /// binary search would give (the samples are strictly rising in power).
+    #[inline]
+    fn flow_inside(&self, power_w: f64) -> (usize, f64, f64) {
+        let p = &self.power_w;
+        let last = p.len() - 1;
+        let b =
+            (((power_w - p[0]) * self.bucket_per_w) as usize).min(self.bucket_interval.len() - 1);
+        let mut k = self.bucket_interval[b] as usize;
+        while k > 0 && p[k] > power_w {
+            k -= 1;
+        }
+        while k + 1 < last && p[k + 1] <= power_w {
+            k += 1;
+        }
+        let [p0, inv_w, c0, c1, c2, c3] = self.flow_cubic[k];
+        let t = (power_w - p0) * inv_w;
+        (k, t, c0 + t * (c1 + t * (c2 + t * c3)))
     }
 
     /// Flow, head and speed for total input power P in W: `None` below [`Self::min_power_w`]
@@ -1122,14 +1181,14 @@ impl PowerFlowTable {
                 beyond_table: self.beyond_from_index <= last,
             });
         }
-        let k = interval_index(self.power_w.len(), power_w, |i| self.power_w[i]);
+        let (k, t, q) = self.flow_inside(power_w);
         let width = self.power_w[k + 1] - self.power_w[k];
-        let (h00, h10, h01, h11) = hermite_basis((power_w - self.power_w[k]) / width);
+        let (h00, h10, h01, h11) = hermite_basis(t);
         let interp = |y: &[f64], m: &[f64]| {
             h00 * y[k] + h10 * width * m[k] + h01 * y[k + 1] + h11 * width * m[k + 1]
         };
         Some(PowerFlow {
-            flow_m3_per_s: interp(&self.flow, &self.flow_slope),
+            flow_m3_per_s: q,
             head_m: interp(&self.head, &self.head_slope),
             speed_ratio: interp(&self.speed, &self.speed_slope),
             power_used_w: power_w,
@@ -1138,8 +1197,8 @@ impl PowerFlowTable {
     }
 
     /// Flow (m³/s), power used (W) and whether the point lies beyond the curve's table, for
-    /// total input power P in W, from one search: the same values as [`Self::lookup`] without
-    /// head and speed. `None` below [`Self::min_power_w`] or for NaN.
+    /// total input power P in W: the values of [`Self::lookup`] without head and speed.
+    /// `None` below [`Self::min_power_w`] or for NaN.
     pub fn flow_and_power(&self, power_w: f64) -> Option<(f64, f64, bool)> {
         let last = self.power_w.len() - 1;
         if power_w.is_nan() || power_w < self.power_w[0] {
@@ -1152,24 +1211,7 @@ impl PowerFlowTable {
                 self.beyond_from_index <= last,
             ));
         }
-        // The samples are strictly rising in power and nearly evenly spaced: guess the
-        // interval from the power and step to the right one (the interval binary search
-        // would give; usually no step at all).
-        let p = &self.power_w;
-        let span = p[last] - p[0];
-        let mut k = (((power_w - p[0]) / span * last as f64) as usize).min(last - 1);
-        while k > 0 && p[k] > power_w {
-            k -= 1;
-        }
-        while k + 1 < last && p[k + 1] <= power_w {
-            k += 1;
-        }
-        let width = self.power_w[k + 1] - self.power_w[k];
-        let (h00, h10, h01, h11) = hermite_basis((power_w - self.power_w[k]) / width);
-        let q = h00 * self.flow[k]
-            + h10 * width * self.flow_slope[k]
-            + h01 * self.flow[k + 1]
-            + h11 * width * self.flow_slope[k + 1];
+        let (k, _, q) = self.flow_inside(power_w);
         Some((q, power_w, self.beyond_from_index <= k + 1))
     }
 
@@ -1194,20 +1236,7 @@ impl PowerFlowTable {
     /// Total flow in m³/s for total input power P in W: 0 below the start power, the
     /// maximum-speed flow above the maximum power. Same method as [`Self::lookup`].
     pub fn flow_for_power(&self, power_w: f64) -> f64 {
-        let last = self.power_w.len() - 1;
-        if power_w.is_nan() || power_w < self.power_w[0] {
-            return 0.0;
-        }
-        if power_w >= self.power_w[last] {
-            return self.flow[last];
-        }
-        let k = interval_index(self.power_w.len(), power_w, |i| self.power_w[i]);
-        let width = self.power_w[k + 1] - self.power_w[k];
-        let (h00, h10, h01, h11) = hermite_basis((power_w - self.power_w[k]) / width);
-        h00 * self.flow[k]
-            + h10 * width * self.flow_slope[k]
-            + h01 * self.flow[k + 1]
-            + h11 * width * self.flow_slope[k + 1]
+        self.flow_and_power(power_w).map_or(0.0, |(q, _, _)| q)
     }
 }
 

@@ -169,8 +169,11 @@ fn solar_year_from_daily(
         let m = month_of_day(d);
         let g = pv.days[d].plane_irradiance_w_per_m2(*h_day);
         for (h, gh) in g.iter().enumerate() {
-            w[d * 24 + h] = pv.dc(*gh, air_c[m]);
-            plane_sum += gh;
+            // no light, no power (the slot stays 0)
+            if *gh > 0.0 {
+                w[d * 24 + h] = pv.dc(*gh, air_c[m]);
+                plane_sum += gh;
+            }
         }
     }
     SolarYear {

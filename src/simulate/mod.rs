@@ -1236,7 +1236,10 @@ impl<'a> State<'a> {
             self.q_hist[b][self.hist_pos + KERNEL_HOURS] = mean_q;
             self.today[b] += mean_q * 3600.0;
         }
-        self.hist_pos = (self.hist_pos + 1) % KERNEL_HOURS;
+        self.hist_pos += 1;
+        if self.hist_pos == KERNEL_HOURS {
+            self.hist_pos = 0;
+        }
         if hour == 23 {
             let day = h / 24;
             for b in 0..nb {
