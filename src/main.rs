@@ -117,7 +117,13 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
             m.weather_years()
         ));
         match tapplan::sizing::size_with_model(&m) {
-            Ok(p) => p,
+            Ok(mut p) => {
+                // tools reading the JSON get the horizon table of every year
+                if a.json.is_some() {
+                    tapplan::sizing::complete_horizon(&m, &mut p);
+                }
+                p
+            }
             Err(e) => {
                 eprintln!("{}: {e}", a.file.display());
                 return Ok(Outcome::BadInput);

@@ -255,3 +255,62 @@ fn remembered_years_equal_fresh_runs_and_count_once() {
     let _ = c;
     assert_eq!(m.simulations_run(), runs + 1);
 }
+
+#[test]
+fn first_failing_years_equal_the_whole_horizon_run_year_by_year() {
+    // The search finds the year a design first misses the target by bisection over the
+    // years, taking verdicts from other years where growing demand implies them. Brute force:
+    // run every year of the horizon on the whole weather ensemble and take the first row that
+    // misses the target.
+    for path in samples() {
+        let loaded = load_file(&path).unwrap();
+        let m = Model::new(&loaded.scheme).unwrap();
+        let plan = size_with_model(&m).unwrap();
+        let mut designs: Vec<(Design, Option<i32>)> = plan
+            .staging
+            .iter()
+            .map(|st| (st.start_design.clone(), st.fails_from_year))
+            .collect();
+        designs.extend(
+            plan.alternatives
+                .iter()
+                .map(|a| (a.design.clone(), a.first_failing_year)),
+        );
+        assert!(
+            !designs.is_empty(),
+            "{}: nothing to compare",
+            path.display()
+        );
+        for (d, said) in designs {
+            let rows = m.horizon(&d);
+            let brute = rows.iter().find(|r| !r.meets_target).map(|r| r.year);
+            assert_eq!(
+                said,
+                brute,
+                "{}: {}",
+                path.display(),
+                d.describe(&loaded.scheme)
+            );
+        }
+    }
+}
+
+#[test]
+fn size_json_holds_a_horizon_row_for_every_year() {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/tolomba-market-generator.yaml");
+    let h = load_file(&path).unwrap().scheme.info.horizon_years as usize;
+    let out = Command::new(env!("CARGO_BIN_EXE_tapplan"))
+        .args(["size", path.to_str().unwrap(), "--json", "-"])
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let rows = v["report"]["horizon"].as_array().unwrap();
+    assert_eq!(rows.len(), h + 1);
+    let years: Vec<i64> = rows.iter().map(|r| r["year"].as_i64().unwrap()).collect();
+    assert!(years.windows(2).all(|w| w[1] == w[0] + 1), "{years:?}");
+}

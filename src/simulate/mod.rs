@@ -594,6 +594,15 @@ impl Model {
         self.memo_put(key, entry);
     }
 
+    /// Adds the year-simulations another model has run (a model built for a sensitivity
+    /// case) to this model's count, so a plan's count includes them.
+    pub fn count_runs_of(&self, other: &Model) {
+        self.counter.fetch_add(
+            other.simulations_run(),
+            std::sync::atomic::Ordering::Relaxed,
+        );
+    }
+
     fn count_one(&self) {
         self.counter
             .fetch_add(1, std::sync::atomic::Ordering::Relaxed);

@@ -7,8 +7,11 @@
 //!   increases as the tank or the array grows. So the smallest adequate tank is found by
 //!   bisection over the candidate sizes, and over the array sizes a branch and bound brackets
 //!   the tank of every array between the tanks of a larger and a smaller array
-//!   ([`search_pump_set`]); runs of arrays whose cost lower bound cannot beat the cheapest
-//!   design found are never simulated.
+//!   (`search_pump_set`); runs of arrays whose cost lower bound cannot beat the cheapest
+//!   design found are never simulated. Each pump set first tries its cheapest corner (smallest
+//!   array and tank), and each bisection the smallest tank of its bracket: when they meet the
+//!   target the search of that set or array ends there. Bisection splits at the lower
+//!   quarter, because a check that fails stops its years early and one that passes does not.
 //! * A cost lower bound that needs no simulation (capital, replacements, salvage, fixed
 //!   maintenance; the whole NPV when no generator or grid pump is installed) prunes pump sets
 //!   and arrays.
@@ -16,8 +19,13 @@
 //!   as it has missed it, and an ensemble as soon as the answer is certain (too many years have
 //!   missed, or too few are left to change it). Years run hardest first (ranked once on the
 //!   largest design), so failing designs are found quickly. Within one pump set the verdict of
-//!   a weather year is also inferred from the same year's verdicts for other sizes (met with a
-//!   smaller array and tank: met; missed with a larger: missed).
+//!   a weather year is also inferred from its verdicts for other sizes (met with a smaller
+//!   array and tank: met; missed with a larger: missed) and, when demand does not fall with
+//!   time (growth ≥ 0), for other years (met later: met; missed earlier: missed). The first
+//!   year a design misses the target (alternatives, staging) is found by bisection over the
+//!   years with the same inference; the report of the chosen design holds the base and
+//!   horizon years, and [`complete_horizon`] adds every year between for the documents that
+//!   show the table (`tapplan plan`, `tapplan size --json`).
 //! * Every year run is remembered by the model (`Model::run_year_with`), so the report, the
 //!   alternatives, the front and the sensitivity table do not run a year twice.
 //! * The chosen design is confirmed at the end from simulated years only (no inferred
@@ -115,6 +123,8 @@ pub struct FrontPoint {
 #[derive(Debug, Clone, Serialize)]
 pub struct Stage {
     pub start_with: String,
+    /// The design built first.
+    pub start_design: Design,
     pub fails_from_year: Option<i32>,
     pub then_add: String,
     /// NPV of building the chosen design at once minus the staged NPV (positive: staging saves).
@@ -274,24 +284,37 @@ struct Search<'a> {
     evaluated: usize,
     /// Ensemble verdicts already reached, by design and year.
     verdicts: std::collections::HashMap<(u64, u64, Vec<u32>, u32), bool>,
-    /// Simulated verdicts of each weather year, by pump set and year: (array W, tank m³,
-    /// met the target), for inferring the verdicts of other array and tank sizes.
-    year_points: std::collections::HashMap<(Vec<u32>, u32), Vec<Vec<YearPoint>>>,
+    /// Simulated verdicts of each weather year, by pump set: (array W, tank m³, year, met
+    /// the target), for inferring the verdicts of other array and tank sizes and years.
+    year_points: std::collections::HashMap<Vec<u32>, Vec<Vec<YearPoint>>>,
+    /// Demand does not fall from year to year (population growth ≥ 0), so a verdict also
+    /// holds for other years: met in a year, met in every earlier one; missed, missed later.
+    demand_grows: bool,
 }
 
-/// A simulated verdict of one weather year: (array W, tank m³, met the target).
-type YearPoint = (f64, f64, bool);
+/// A simulated verdict of one weather year: (array W, tank m³, year, met the target).
+type YearPoint = (f64, f64, u32, bool);
 
-/// The verdict of one weather year for (array, tank) implied by verdicts of the same pump set
-/// and year, if any: assuming shortfall does not increase with tank or array size, a year met
+/// The verdict of one weather year for (array, tank, year) implied by verdicts of the same
+/// pump set, if any. Assuming shortfall does not increase with tank or array size, a year met
 /// with a smaller-or-equal array and tank is met, and one missed with a larger-or-equal array
-/// and tank is missed.
-fn infer_year(points: &[YearPoint], array_w: f64, tank_m3: f64) -> Option<bool> {
-    for &(a, t, ok) in points {
-        if ok && a <= array_w && t <= tank_m3 {
+/// and tank is missed. Across years only when `demand_grows` (shortfall then does not fall
+/// with time): met in a later year implies met, missed in an earlier year implies missed;
+/// otherwise only verdicts of the same year count.
+fn infer_year(
+    points: &[YearPoint],
+    array_w: f64,
+    tank_m3: f64,
+    year: u32,
+    demand_grows: bool,
+) -> Option<bool> {
+    for &(a, t, y, ok) in points {
+        let later = if demand_grows { y >= year } else { y == year };
+        let earlier = if demand_grows { y <= year } else { y == year };
+        if ok && later && a <= array_w && t <= tank_m3 {
             return Some(true);
         }
-        if !ok && a >= array_w && t >= tank_m3 {
+        if !ok && earlier && a >= array_w && t >= tank_m3 {
             return Some(false);
         }
     }
@@ -312,7 +335,7 @@ impl Search<'_> {
             return *v;
         }
         self.evaluated += 1;
-        let points = self.year_points.entry((d.units.clone(), year)).or_default();
+        let points = self.year_points.entry(d.units.clone()).or_default();
         let m = self.m;
         let n = m.weather_years_for(d);
         if points.len() < n {
@@ -326,12 +349,12 @@ impl Search<'_> {
                 d,
                 year,
                 &self.order,
-                |w| infer_year(&points[w], d.array_w, d.tank_m3),
+                |w| infer_year(&points[w], d.array_w, d.tank_m3, year, self.demand_grows),
                 |w, ok| new_points.push((w, ok)),
             )
         };
         for (w, ok) in new_points {
-            points[w].push((d.array_w, d.tank_m3, ok));
+            points[w].push((d.array_w, d.tank_m3, year, ok));
         }
         self.verdicts.insert(key, v);
         v
@@ -369,9 +392,22 @@ impl Search<'_> {
         let verified = hi.is_some() || top_first;
         let mut hi = hi.unwrap_or(top);
         let mut lo = lo.min(hi);
+        // The smallest tank of the bracket first: it passes often when the tank hardly changes
+        // between neighbouring arrays, and a check that fails there fails early in the year.
+        if lo < hi {
+            if self.passes(&d(self.tanks[lo]), self.horizon) {
+                return Some(lo);
+            }
+            lo += 1;
+        }
         // invariant: every tank below lo fails, hi passes (or is the unchecked largest tank)
         while lo < hi {
-            let mid = (lo + hi) / 2;
+            // Split at the lower quarter, not the middle: a check that passes runs every
+            // weather year it needs to the end of the year, one that fails stops each failing
+            // year early, so passes cost several times more and fewer of them pay (a quarter
+            // used the fewest year-simulations on the samples of a half, a third, a quarter
+            // and a fifth).
+            let mid = lo + (hi - lo) / 4;
             if self.passes(&d(self.tanks[mid]), self.horizon) {
                 hi = mid;
             } else {
@@ -531,28 +567,32 @@ fn cost_of(
     cost::life_cycle_cost(s, d, &first, &last, fuel_factor)
 }
 
-/// First year the design misses the target, by bisection over the years (demand assumed
-/// non-decreasing with time); None when it meets it through the horizon.
-fn first_failing_year(m: &Model, d: &Design, order: &[usize]) -> Option<i32> {
-    let s = &m.scheme;
-    let h = s.info.horizon_years;
-    let ok = |y: u32| ensemble_passes(m, d, y, order);
-    if ok(h) {
-        return None;
-    }
-    if !ok(0) {
-        return Some(s.info.base_year);
-    }
-    let (mut lo, mut hi) = (0u32, h); // lo meets, hi fails
-    while hi - lo > 1 {
-        let mid = (lo + hi) / 2;
-        if ok(mid) {
-            lo = mid;
-        } else {
-            hi = mid;
+impl Search<'_> {
+    /// First year the design misses the target, by bisection over the years (demand assumed
+    /// non-decreasing with time); None when it meets it through the horizon. The base year
+    /// is checked only when every later year checked fails (a year met later is met then).
+    fn first_failing_year(&mut self, d: &Design) -> Option<i32> {
+        let base = self.m.scheme.info.base_year;
+        let h = self.horizon;
+        if self.passes(d, h) {
+            return None;
         }
+        // lo meets (None: no year checked meets), hi misses
+        let (mut lo, mut hi): (Option<u32>, u32) = (None, h);
+        loop {
+            let first = lo.map_or(0, |l| l + 1);
+            if first >= hi {
+                break;
+            }
+            let mid = first + (hi - 1 - first) / 2;
+            if self.passes(d, mid) {
+                lo = Some(mid);
+            } else {
+                hi = mid;
+            }
+        }
+        Some(base + hi as i32)
     }
-    Some(s.info.base_year + hi as i32)
 }
 
 fn evaluated(
@@ -656,6 +696,14 @@ fn search_pump_set(
         count,
         cost::npv_lower_bound(s, &design(arrays[0], search.tanks[0])),
     ) {
+        return;
+    }
+    // The cheapest corner first (smallest array, smallest tank): when it meets the target it
+    // is the least-cost design of the set, as cost does not fall with tank or array size; when
+    // it misses, the years fail early, so the check is cheap.
+    let corner = design(arrays[0], search.tanks[0]);
+    if search.passes(&corner, search.horizon) {
+        found.offer(search_npv(search.m, &corner, median_w), &corner);
         return;
     }
     // the largest array first: if even it fails with the largest tank, every array does
@@ -762,6 +810,7 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
         evaluated: 0,
         verdicts: Default::default(),
         year_points: Default::default(),
+        demand_grows: s.demand.growth_rate_per_year >= 0.0,
     };
     let median_w = median_weather(&big);
 
@@ -820,7 +869,7 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
 
     // ---- report on the chosen design or the best reachable
     let shown = chosen_design.clone().unwrap_or_else(|| biggest.clone());
-    let report = simulate::run_report(m, &shown);
+    let report = report_at_ends(&mut search, &shown);
     let median_w = median_weather(&report.horizon_year);
     let chosen = chosen_design.as_ref().map(|d| {
         let c = cost_of(m, d, &Scenario::default(), median_w, 1.0);
@@ -837,7 +886,7 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
     for d in &confirmed_alts {
         let e = m.run_ensemble(d, horizon);
         let c = cost_of(m, d, &Scenario::default(), median_weather(&e), 1.0);
-        let ffy = first_failing_year(m, d, &search.order);
+        let ffy = search.first_failing_year(d);
         alternatives.push(evaluated(m, d, &e, c, ffy));
     }
     alternatives.sort_by(|a, b| a.cost.npv.total_cmp(&b.cost.npv));
@@ -851,7 +900,7 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
     // ---- staging and sensitivity
     let staging = chosen_design
         .as_ref()
-        .map(|d| staging(m, d, &arrays_all, median_w, &search.order))
+        .map(|d| staging(&mut search, d, &arrays_all, median_w))
         .unwrap_or_default();
     let sensitivity = chosen_design
         .as_ref()
@@ -892,6 +941,30 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
         stats,
         notes,
     })
+}
+
+/// The run report of a design as the search needs it: base and horizon years (the horizon
+/// table holds only those two rows) and the first failing year by bisection over the years
+/// ([`first_failing_year`]). [`complete_horizon`] fills in every year for the documents
+/// that show the table.
+fn report_at_ends(search: &mut Search, d: &Design) -> RunReport {
+    let mut r = simulate::run_report_with(search.m, d, simulate::HorizonYears::Ends);
+    r.first_failing_year = search.first_failing_year(d);
+    r
+}
+
+/// Fills the plan's horizon table with every year from the base year to the horizon (an
+/// ensemble per year for solar schemes), as `tapplan plan` and `tapplan size --json` show
+/// it; the first failing year is then read from the table, and the year-simulation count
+/// includes these runs.
+pub fn complete_horizon(m: &Model, plan: &mut Plan) {
+    if plan.report.horizon.len() as u32 == m.scheme.info.horizon_years + 1 {
+        return;
+    }
+    let rows = m.horizon(&plan.report.design);
+    plan.report.first_failing_year = rows.iter().find(|r| !r.meets_target).map(|r| r.year);
+    plan.report.horizon = rows;
+    plan.stats.year_simulations = m.simulations_run();
 }
 
 /// Evaluates one given design (no search) into a `Plan`: `chosen` is the design when it meets
@@ -1033,7 +1106,8 @@ fn front(m: &Model, d: &Design, tanks: &[f64], median_w: usize) -> Vec<FrontPoin
     out
 }
 
-fn staging(m: &Model, d: &Design, arrays: &[f64], median_w: usize, order: &[usize]) -> Vec<Stage> {
+fn staging(search: &mut Search, d: &Design, arrays: &[f64], median_w: usize) -> Vec<Stage> {
+    let m = search.m;
     let s = &m.scheme;
     let i = s.costs.discount_rate;
     let full = cost_of(m, d, &Scenario::default(), median_w, 1.0);
@@ -1067,7 +1141,7 @@ fn staging(m: &Model, d: &Design, arrays: &[f64], median_w: usize, order: &[usiz
         ));
     }
     for (sd, add) in smaller {
-        let ffy = first_failing_year(m, &sd, order);
+        let ffy = search.first_failing_year(&sd);
         let saving = match ffy {
             Some(y) if y > s.info.base_year => {
                 let years = (y - s.info.base_year) as f64;
@@ -1079,6 +1153,7 @@ fn staging(m: &Model, d: &Design, arrays: &[f64], median_w: usize, order: &[usiz
         };
         stages.push(Stage {
             start_with: sd.describe(s),
+            start_design: sd.clone(),
             fails_from_year: ffy,
             then_add: add,
             capital_saving_pw: saving,
@@ -1147,6 +1222,7 @@ fn sensitivity(m: &Model, d: &Design, median_w: usize) -> Result<Vec<Sensitivity
     if uses_solar(s, &d.units) {
         let m2 = Model::with_irradiation(s, 1.0 + sens.irradiation_fraction)?;
         rows.push(row(irr_case, &m2, Scenario::default(), 1.0));
+        m.count_runs_of(&m2);
     } else {
         rows.push(na(irr_case));
     }

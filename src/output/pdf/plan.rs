@@ -1698,6 +1698,8 @@ pub fn run_plan(
         }
         None => crate::sizing::size_with_model(&m)?,
     };
+    let mut plan = plan;
+    crate::sizing::complete_horizon(&m, &mut plan);
     let detail = m.run_year(
         &plan.report.design,
         s.info.horizon_years,
