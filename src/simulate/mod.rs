@@ -901,7 +901,10 @@ fn past_drawdown(
 /// The state of one year's run.
 struct State<'a> {
     design: &'a Design,
-    weather: usize,
+    /// PV power per watt-peak of this weather year, every hour (empty without solar).
+    w_per_wp: &'a [f64],
+    /// Motor pump types with units installed and a table, in the model's order.
+    motors: Vec<ActiveMotor<'a>>,
     daily_demand_m3: f64,
     usable_m3: f64,
     v: f64,
@@ -934,14 +937,47 @@ struct State<'a> {
     bh_motor: Vec<f64>,
 }
 
+/// A motor pump type with units installed, as the hourly step needs it.
+struct ActiveMotor<'a> {
+    /// Index in the scheme's pumps.
+    i: usize,
+    units: u32,
+    drive: DriveKind,
+    /// Borehole index.
+    b: usize,
+    table: &'a hydraulics::PumpTables,
+}
+
 impl<'a> State<'a> {
-    fn new(m: &Model, design: &'a Design, daily_demand_m3: f64, weather: usize) -> State<'a> {
+    fn new(m: &'a Model, design: &'a Design, daily_demand_m3: f64, weather: usize) -> State<'a> {
         let usable = design.tank_m3 * m.scheme.tank.usable_fraction;
         let nb = m.scheme.boreholes.len();
         let v = usable * m.scheme.tank.initial_level_fraction;
+        let w_per_wp: &[f64] = if m.solar_years.is_empty() {
+            &[]
+        } else {
+            &m.solar_years[weather.min(m.solar_years.len() - 1)].w_per_wp
+        };
+        let motors = m
+            .motor_pumps
+            .iter()
+            .filter_map(|&i| {
+                let units = design.units.get(i).copied().unwrap_or(0);
+                let table = m.tables[i].as_ref()?;
+                let p = &m.scheme.pumps[i];
+                (units > 0).then_some(ActiveMotor {
+                    i,
+                    units,
+                    drive: p.drive,
+                    b: p.source_index,
+                    table,
+                })
+            })
+            .collect();
         State {
             design,
-            weather,
+            w_per_wp,
+            motors,
             daily_demand_m3,
             usable_m3: usable,
             v,
@@ -1024,11 +1060,10 @@ impl<'a> State<'a> {
         }
 
         // drive power available
-        let solar_w = if m.solar_years.is_empty() {
+        let solar_w = if self.w_per_wp.is_empty() {
             0.0
         } else {
-            self.design.array_w
-                * m.solar_years[self.weather.min(m.solar_years.len() - 1)].w_per_wp[h]
+            self.design.array_w * self.w_per_wp[h]
         };
         let mut pool_solar = solar_w;
         let mut pool_gen = match &s.generator {
@@ -1048,16 +1083,13 @@ impl<'a> State<'a> {
         let mut speed = 0.0;
         let mut depth_rec: Option<f64> = None;
         if self.pumps_on {
-            for &i in &m.motor_pumps {
-                let p = &s.pumps[i];
-                let n_inst = self.design.units.get(i).copied().unwrap_or(0);
-                let Some(t) = &m.tables[i] else { continue };
-                if n_inst == 0 {
-                    continue;
-                }
-                let b = p.source_index;
+            for am in &self.motors {
+                let p = &s.pumps[am.i];
+                let n_inst = am.units;
+                let t = am.table;
+                let b = am.b;
                 let bore = &s.boreholes[b];
-                let pool_now = match p.drive {
+                let pool_now = match am.drive {
                     DriveKind::Solar => pool_solar,
                     DriveKind::Generator => pool_gen,
                     _ => pool_grid,
@@ -1082,6 +1114,10 @@ impl<'a> State<'a> {
                     let g = t.grid(s_past);
                     let mut best_q = 0.0;
                     for n in 1..=n_inst {
+                        // below the start power of n units nothing larger starts either
+                        if *pool < t.start_power_w * n as f64 {
+                            break;
+                        }
                         let (q, pt) = t.variable_at(n, *pool, g);
                         if q > best_q {
                             best_q = q;
