@@ -314,3 +314,29 @@ fn size_json_holds_a_horizon_row_for_every_year() {
     let years: Vec<i64> = rows.iter().map(|r| r["year"].as_i64().unwrap()).collect();
     assert!(years.windows(2).all(|w| w[1] == w[0] + 1), "{years:?}");
 }
+
+#[test]
+fn size_prints_the_same_bytes_with_one_thread_or_two() {
+    // The search runs ensembles and the presentation tables side by side; neither the figures
+    // nor the count of year-simulations may depend on how many threads ran them.
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/sabuya-handpumps.yaml");
+    let run = |threads: &str| {
+        let out = Command::new(env!("CARGO_BIN_EXE_tapplan"))
+            .env("RAYON_NUM_THREADS", threads)
+            .args(["size", path.to_str().unwrap(), "--json", "-"])
+            .output()
+            .unwrap();
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        out.stdout
+    };
+    let one = run("1");
+    assert!(!one.is_empty());
+    assert!(
+        one == run("2"),
+        "size --json differs between one thread and two"
+    );
+}

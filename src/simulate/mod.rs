@@ -312,14 +312,17 @@ impl YearKey {
     }
 }
 
-/// A remembered year: the whole result, or only that it missed the target (an early stop).
+/// A remembered year: the whole result, only that it missed the target (an early stop), or
+/// only that it was run (beyond [`MEMO_LIMIT`], so it is counted once).
 #[derive(Debug, Clone)]
 enum Memo {
     Full(Box<YearResult>),
     MissedTarget,
+    Seen,
 }
 
-/// Most years remembered per model (beyond it years are simply run again).
+/// Most years whose results are remembered per model (beyond it a year is run again when
+/// asked again; its key is kept so it is still counted once).
 const MEMO_LIMIT: usize = 100_000;
 
 impl Model {
@@ -576,7 +579,7 @@ impl Model {
         match self.memo_get(&key) {
             Some(Memo::Full(r)) => return year_meets_target(&self.scheme, &r),
             Some(Memo::MissedTarget) => return false,
-            None => {}
+            Some(Memo::Seen) | None => {}
         }
         let r = self.simulate_year(design, year_offset, weather, false, sc, Some(abort));
         self.remember(key, &r);
@@ -613,20 +616,28 @@ impl Model {
         memo.get(key).cloned()
     }
 
-    /// Remembers a year; counts it as a year-simulation unless an equal answer was already
-    /// there (two threads that ran the same year count it once, so the count is the same on
-    /// every run).
+    /// Remembers a year; counts it as a year-simulation the first time its key is seen. A
+    /// year is counted once however it was run (stopped early, whole, or both, in either
+    /// order, by one thread or two), so the count depends only on which years were asked
+    /// for, never on the order or the number of threads.
     fn memo_put(&self, key: YearKey, entry: Memo) {
         let mut memo = self.memo.lock().unwrap_or_else(|e| e.into_inner());
-        let new_kind = matches!(
-            (memo.get(&key), &entry),
-            (None, _) | (Some(Memo::MissedTarget), Memo::Full(_))
-        );
-        if new_kind {
-            self.count_one();
-            if memo.len() < MEMO_LIMIT || memo.contains_key(&key) {
-                memo.insert(key, entry);
+        let better = match (memo.get(&key), &entry) {
+            (None, _) => {
+                self.count_one();
+                true
             }
+            (Some(Memo::Seen), Memo::Full(_) | Memo::MissedTarget)
+            | (Some(Memo::MissedTarget), Memo::Full(_)) => true,
+            _ => false,
+        };
+        if better {
+            let entry = if memo.len() < MEMO_LIMIT || memo.contains_key(&key) {
+                entry
+            } else {
+                Memo::Seen
+            };
+            memo.insert(key, entry);
         }
     }
 

@@ -881,40 +881,65 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
         None
     };
 
-    // ---- alternatives: cheapest per pump count, with full figures
-    let mut alternatives = Vec::new();
-    for d in &confirmed_alts {
-        let e = m.run_ensemble(d, horizon);
-        let c = cost_of(m, d, &Scenario::default(), median_weather(&e), 1.0);
-        let ffy = search.first_failing_year(d);
-        alternatives.push(evaluated(m, d, &e, c, ffy));
-    }
+    // ---- alternatives, front, staging, sensitivity and the mean-day comparison
+    // Two independent halves run side by side: what asks the search for verdicts (the first
+    // failing year of each alternative, then the staging) and what only runs ensembles. The
+    // years each half asks for do not depend on the other, so neither do the results or the
+    // count of year-simulations (a year is counted once, whoever runs it first).
+    let chosen_ref = chosen_design.as_ref();
+    let ((alt_ffys, staging), (alt_runs, (front, (sensitivity, mean_days)))) = rayon::join(
+        || {
+            let ffys: Vec<Option<i32>> = confirmed_alts
+                .iter()
+                .map(|d| search.first_failing_year(d))
+                .collect();
+            let staging = chosen_ref
+                .map(|d| staging(&mut search, d, &arrays_all, median_w))
+                .unwrap_or_default();
+            (ffys, staging)
+        },
+        || {
+            let alt_runs: Vec<(Ensemble, CostBreakdown)> = confirmed_alts
+                .iter()
+                .map(|d| {
+                    let e = m.run_ensemble(d, horizon);
+                    let c = cost_of(m, d, &Scenario::default(), median_weather(&e), 1.0);
+                    (e, c)
+                })
+                .collect();
+            // the cost–reliability front over tank sizes around the chosen pump set and array
+            let front = chosen_ref
+                .map(|d| front(m, d, &tanks, median_w))
+                .unwrap_or_default();
+            let rest = rayon::join(
+                || {
+                    chosen_ref
+                        .map(|d| sensitivity(m, d, median_w))
+                        .transpose()
+                        .map(Option::unwrap_or_default)
+                },
+                // mean days vs the ensemble (solar with varying weather)
+                || match (chosen_ref, &s.weather.mode) {
+                    (Some(d), WeatherMode::Synthetic { .. } | WeatherMode::File { .. })
+                        if s.uses_solar() =>
+                    {
+                        mean_days_comparison(s, d, &tanks).map(Some)
+                    }
+                    _ => Ok(None),
+                },
+            );
+            (alt_runs, (front, rest))
+        },
+    );
+    let sensitivity = sensitivity?;
+    let mean_days = mean_days?;
+    let mut alternatives: Vec<Evaluated> = confirmed_alts
+        .iter()
+        .zip(alt_runs)
+        .zip(alt_ffys)
+        .map(|((d, (e, c)), ffy)| evaluated(m, d, &e, c, ffy))
+        .collect();
     alternatives.sort_by(|a, b| a.cost.npv.total_cmp(&b.cost.npv));
-
-    // ---- cost–reliability front over tank sizes around the chosen pump set and array
-    let front = chosen_design
-        .as_ref()
-        .map(|d| front(m, d, &tanks, median_w))
-        .unwrap_or_default();
-
-    // ---- staging and sensitivity
-    let staging = chosen_design
-        .as_ref()
-        .map(|d| staging(&mut search, d, &arrays_all, median_w))
-        .unwrap_or_default();
-    let sensitivity = chosen_design
-        .as_ref()
-        .map(|d| sensitivity(m, d, median_w))
-        .transpose()?
-        .unwrap_or_default();
-
-    // ---- mean days vs the ensemble (solar with varying weather)
-    let mean_days = match (&chosen_design, &s.weather.mode) {
-        (Some(d), WeatherMode::Synthetic { .. } | WeatherMode::File { .. }) if s.uses_solar() => {
-            Some(mean_days_comparison(s, d, &tanks)?)
-        }
-        _ => None,
-    };
 
     let stats = SearchStats {
         pump_sets: sets.len(),
