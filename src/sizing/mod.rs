@@ -8,10 +8,12 @@
 //!   bisection over the candidate sizes, and over the array sizes a branch and bound brackets
 //!   the tank of every array between the tanks of a larger and a smaller array
 //!   (`search_pump_set`); runs of arrays whose cost lower bound cannot beat the cheapest
-//!   design found are never simulated. Each pump set first tries its cheapest corner (smallest
-//!   array and tank), and each bisection the smallest tank of its bracket: when they meet the
-//!   target the search of that set or array ends there. Bisection splits at the lower
-//!   quarter, because a check that fails stops its years early and one that passes does not.
+//!   design found are never simulated, and a bisection stops as soon as the lower end of its
+//!   bracket makes every design of its array too dear. Each pump set first tries its cheapest
+//!   corner (smallest array and tank), and each bisection the smallest tank of its bracket:
+//!   when they meet the target the search of that set or array ends there. Bisection splits
+//!   at the lower quarter, because a check that fails stops its years early and one that
+//!   passes does not.
 //! * A cost lower bound that needs no simulation (capital, replacements, salvage, fixed
 //!   maintenance; the whole NPV when no generator or grid pump is installed) prunes pump sets
 //!   and arrays.
@@ -273,6 +275,18 @@ fn uses_solar(s: &Scheme, units: &[u32]) -> bool {
         .any(|(p, n)| *n > 0 && p.drive == DriveKind::Solar)
 }
 
+/// What a tank bisection found for one array.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum TankIn {
+    /// The smallest adequate tank (index).
+    At(usize),
+    /// Even the largest tank misses the target.
+    Fails,
+    /// Stopped: the smallest adequate tank is at least this index, and no design of the array
+    /// with it could be kept.
+    Pruned(usize),
+}
+
 /// The search context.
 struct Search<'a> {
     m: &'a Model,
@@ -368,7 +382,10 @@ impl Search<'_> {
 
     /// Smallest tank index that passes, by bisection, knowing that every tank below `lo`
     /// fails and that `hi` passes (`None`: not known; when even the largest tank fails there
-    /// is no answer). Shortfall is assumed non-increasing in tank size.
+    /// is no answer). Shortfall is assumed non-increasing in tank size. `worth(i)` says
+    /// whether a design of this array with tank index `i` or larger could still be kept
+    /// (its cost lower bound beats what was found); once the bracket's lower end is not
+    /// worth it the bisection stops there ([`TankIn::Pruned`]).
     fn tank_in(
         &mut self,
         units: &[u32],
@@ -376,7 +393,8 @@ impl Search<'_> {
         lo: usize,
         hi: Option<usize>,
         top_first: bool,
-    ) -> Option<usize> {
+        worth: &dyn Fn(usize) -> bool,
+    ) -> TankIn {
         let d = |t: f64| Design {
             tank_m3: t,
             units: units.to_vec(),
@@ -386,8 +404,11 @@ impl Search<'_> {
         // With `hi` unknown the largest tank is checked first (`top_first`: one check tells an
         // array that cannot meet the target at all), or the bisection runs as if it passed and
         // checks it only if the answer comes out there (one check fewer when it does not).
+        if !worth(lo.min(top)) {
+            return TankIn::Pruned(lo.min(top));
+        }
         if hi.is_none() && top_first && !self.passes(&d(self.tanks[top]), self.horizon) {
-            return None;
+            return TankIn::Fails;
         }
         let verified = hi.is_some() || top_first;
         let mut hi = hi.unwrap_or(top);
@@ -396,17 +417,20 @@ impl Search<'_> {
         // between neighbouring arrays, and a check that fails there fails early in the year.
         if lo < hi {
             if self.passes(&d(self.tanks[lo]), self.horizon) {
-                return Some(lo);
+                return TankIn::At(lo);
             }
             lo += 1;
         }
         // invariant: every tank below lo fails, hi passes (or is the unchecked largest tank)
         while lo < hi {
+            if !worth(lo) {
+                return TankIn::Pruned(lo);
+            }
             // Split at the lower quarter, not the middle: a check that passes runs every
             // weather year it needs to the end of the year, one that fails stops each failing
-            // year early, so passes cost several times more and fewer of them pay (a quarter
-            // used the fewest year-simulations on the samples of a half, a third, a quarter
-            // and a fifth).
+            // year early, so passes cost several times more and fewer of them pay (of a half,
+            // a third, a quarter and a sixth, a quarter used the fewest year-simulations on
+            // the samples and 48 varied copies of them).
             let mid = lo + (hi - lo) / 4;
             if self.passes(&d(self.tanks[mid]), self.horizon) {
                 hi = mid;
@@ -414,10 +438,15 @@ impl Search<'_> {
                 lo = mid + 1;
             }
         }
-        if hi == top && !verified && !self.passes(&d(self.tanks[top]), self.horizon) {
-            return None;
+        if hi == top && !verified {
+            if !worth(top) {
+                return TankIn::Pruned(top);
+            }
+            if !self.passes(&d(self.tanks[top]), self.horizon) {
+                return TankIn::Fails;
+            }
         }
-        Some(hi)
+        TankIn::At(hi)
     }
 }
 
@@ -706,14 +735,32 @@ fn search_pump_set(
         found.offer(search_npv(search.m, &corner, median_w), &corner);
         return;
     }
-    // the largest array first: if even it fails with the largest tank, every array does
-    let Some(t_top) = search.tank_in(units, arrays[top_a], 0, None, true) else {
-        return;
+    // Whether an array could still give a design worth keeping with a tank of index t or
+    // larger (the cost lower bound grows with the tank).
+    let tanks = search.tanks.clone();
+    let worth_at = |a: f64, found: &Found, t: usize| {
+        found.worth(count, cost::npv_lower_bound(s, &design(a, tanks[t])))
     };
-    let d = design(arrays[top_a], search.tanks[t_top]);
-    found.offer(search_npv(search.m, &d, median_w), &d);
-    // runs of arrays (lo, hi) exclusive, with the tank at each end (None below the first
-    // array: unknown; Some(None): fails even with the largest tank)
+    // the largest array first: if even it fails with the largest tank, every array does
+    let t_top = {
+        let f: &Found = found;
+        let worth = |t: usize| worth_at(arrays[top_a], f, t);
+        search.tank_in(units, arrays[top_a], 0, None, true, &worth)
+    };
+    let t_top = match t_top {
+        TankIn::Fails => return,
+        TankIn::At(t) => {
+            let d = design(arrays[top_a], search.tanks[t]);
+            found.offer(search_npv(search.m, &d, median_w), &d);
+            t
+        }
+        // every smaller array needs at least this tank
+        TankIn::Pruned(t) => t,
+    };
+    // Runs of arrays (lo, hi) exclusive, with what is known of the tank at each end: at the
+    // smaller end an upper bound (None: unknown; Some(None): fails even with the largest
+    // tank), at the larger end a lower bound (None: fails even with the largest tank, so
+    // does every array below it). The bounds are exact tanks where a bisection ended there.
     type End = Option<Option<usize>>;
     let mut runs: Vec<(Option<usize>, End, usize, Option<usize>)> =
         vec![(None, None, top_a, Some(t_top))];
@@ -725,8 +772,7 @@ fn search_pump_set(
         let Some(t_hi) = t_hi else {
             continue; // the larger end fails with the largest tank: so does every array here
         };
-        let lb = cost::npv_lower_bound(s, &design(arrays[first], search.tanks[t_hi]));
-        if !found.worth(count, lb) {
+        if !worth_at(arrays[first], found, t_hi) {
             continue;
         }
         let mid = (first + hi - 1) / 2;
@@ -736,18 +782,27 @@ fn search_pump_set(
             _ => None,
         };
         let t_mid = if upper == Some(t_hi) {
-            Some(t_hi)
+            TankIn::At(t_hi)
         } else {
             // an inside array: no top-first check (fewer checks on the samples)
-            search.tank_in(units, arrays[mid], t_hi, upper, false)
+            let f: &Found = found;
+            let worth = |t: usize| worth_at(arrays[mid], f, t);
+            search.tank_in(units, arrays[mid], t_hi, upper, false, &worth)
         };
-        if let Some(t) = t_mid {
-            let d = design(arrays[mid], search.tanks[t]);
-            found.offer(search_npv(search.m, &d, median_w), &d);
-        }
+        let (lower_run_hi, upper_run_lo): (Option<usize>, End) = match t_mid {
+            TankIn::At(t) => {
+                let d = design(arrays[mid], search.tanks[t]);
+                found.offer(search_npv(search.m, &d, median_w), &d);
+                (Some(t), Some(Some(t)))
+            }
+            TankIn::Fails => (None, Some(None)),
+            // T(mid) is at least t: a lower bound for the smaller arrays, no upper bound for
+            // the larger ones
+            TankIn::Pruned(t) => (Some(t), None),
+        };
         // the cheaper (smaller-array) run is searched second so the larger tightens the bound
-        runs.push((lo, t_lo, mid, t_mid));
-        runs.push((Some(mid), Some(t_mid), hi, Some(t_hi)));
+        runs.push((lo, t_lo, mid, lower_run_hi));
+        runs.push((Some(mid), upper_run_lo, hi, Some(t_hi)));
     }
 }
 
