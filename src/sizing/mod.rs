@@ -732,12 +732,16 @@ fn search_pump_set(
         return;
     }
     // The cheapest corner first (smallest array, smallest tank): when it meets the target it
-    // is the least-cost design of the set, as cost does not fall with tank or array size; when
-    // it misses, the years fail early, so the check is cheap.
+    // is the least-cost design of the set if cost does not fall with the array (no generator
+    // or grid pump whose fuel or energy a larger array could save; cost is taken not to fall
+    // with the tank, as everywhere in the search). When it misses, the years fail early, so
+    // the check is cheap.
     let corner = design(arrays[0], search.tanks[0]);
     if search.passes(&corner, search.horizon) {
         found.offer(search_npv(search.m, &corner, median_w), &corner);
-        return;
+        if arrays.len() == 1 || cost::npv_needs_no_simulation(s, &corner) {
+            return;
+        }
     }
     // Whether an array could still give a design worth keeping with a tank of index t or
     // larger (the cost lower bound grows with the tank).
