@@ -1199,6 +1199,7 @@ impl PowerFlowTable {
     /// Flow (m³/s), power used (W) and whether the point lies beyond the curve's table, for
     /// total input power P in W: the values of [`Self::lookup`] without head and speed.
     /// `None` below [`Self::min_power_w`] or for NaN.
+    #[inline]
     pub fn flow_and_power(&self, power_w: f64) -> Option<(f64, f64, bool)> {
         let last = self.power_w.len() - 1;
         if power_w.is_nan() || power_w < self.power_w[0] {

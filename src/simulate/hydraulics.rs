@@ -190,6 +190,7 @@ impl PumpTables {
     /// between grid points, 0 where a table does not deliver), and the operating point
     /// [`Self::point`] gives, without head and speed (`None`: no
     /// delivery). Variable-speed tables only; otherwise `(0, None)`.
+    #[inline]
     pub fn variable_at(&self, n: u32, power_w: f64, g: (usize, f64)) -> (f64, Option<Point>) {
         let Some(UnitsTable::Variable(v)) = self.by_units.get((n as usize).wrapping_sub(1)) else {
             return (0.0, None);
