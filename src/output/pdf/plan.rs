@@ -1609,7 +1609,7 @@ fn method_section(inp: &PlanInputs, b: &mut Vec<Block>) {
         }
     }
     m.push("Costs: present worth of capital, replacements, salvage, maintenance and energy with end-of-year cash flows (Newnan, Eschenbach & Lavelle, Engineering Economic Analysis, ch. 5); operation in the years between the first and the horizon year is interpolated linearly; cost per m³ is the NPV over the discounted delivered volume.".into());
-    m.push("Search: least cost over pump sets, array sizes and tank sizes; the smallest adequate tank by bisection and, over array sizes, branch and bound (shortfall assumed not to rise with tank or array size; during the search a weather year's verdict may be inferred from its verdicts at other sizes); the chosen design and the next smaller tank are confirmed from simulated weather years only.".into());
+    m.push("Search: least cost over pump sets, array sizes and tank sizes; the smallest adequate tank by bisection and, over array sizes, branch and bound, stopping wherever a cost lower bound shows no cheaper design can follow (shortfall assumed not to rise with tank or array size, nor, when the population grows, to fall from year to year; during the search a weather year's verdict may be inferred from its verdicts at other sizes and years); the first year a design misses the target by bisection over the years; the chosen design and the next smaller tank are confirmed from simulated weather years only.".into());
     b.push(Block::BulletList(m));
     b.push(heading(2, "Assumptions and operating rules"));
     let mut a: Vec<String> = r.rules.clone();
