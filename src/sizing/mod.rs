@@ -401,16 +401,15 @@ impl Search<'_> {
             array_w,
         };
         let top = self.tanks.len() - 1;
-        // With `hi` unknown the largest tank is checked first (`top_first`: one check tells an
-        // array that cannot meet the target at all), or the bisection runs as if it passed and
-        // checks it only if the answer comes out there (one check fewer when it does not).
+        // With `hi` unknown the largest tank is checked before the bisection (`top_first`: one
+        // check tells an array that cannot meet the target at all), or the bisection runs as if
+        // it passed and checks it only if the answer comes out there (one check fewer when it
+        // does not).
         if !worth(lo.min(top)) {
             return TankIn::Pruned(lo.min(top));
         }
-        if hi.is_none() && top_first && !self.passes(&d(self.tanks[top]), self.horizon) {
-            return TankIn::Fails;
-        }
         let verified = hi.is_some() || top_first;
+        let known_hi = hi;
         let mut hi = hi.unwrap_or(top);
         let mut lo = lo.min(hi);
         // The smallest tank of the bracket first: it passes often when the tank hardly changes
@@ -420,6 +419,9 @@ impl Search<'_> {
                 return TankIn::At(lo);
             }
             lo += 1;
+        }
+        if known_hi.is_none() && top_first && !self.passes(&d(self.tanks[top]), self.horizon) {
+            return TankIn::Fails;
         }
         // invariant: every tank below lo fails, hi passes (or is the unchecked largest tank)
         while lo < hi {
