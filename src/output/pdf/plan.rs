@@ -1691,14 +1691,14 @@ pub fn run_plan(
     use crate::error::Error;
     let s = &loaded.scheme;
     let m = Model::new(s)?;
-    let plan = match overrides {
+    let mut plan = match overrides {
         Some(o) => {
             let d = crate::simulate::resolve_design(s, o).map_err(Error::Input)?;
             crate::sizing::evaluate_fixed(&m, &d)?
         }
         None => crate::sizing::size_with_model(&m)?,
     };
-    let mut plan = plan;
+    // the plan shows the year-by-year table (a fixed design's report already has it)
     crate::sizing::complete_horizon(&m, &mut plan);
     let detail = m.run_year(
         &plan.report.design,
