@@ -681,6 +681,7 @@ impl Model {
                 break;
             }
         }
+        st.finish_months();
         let s = &self.scheme;
         let annual = Totals::sum(&st.months);
         let motor_pumped = annual.pumped_m3 - annual.hand_pumped_m3 - annual.ram_pumped_m3;
@@ -942,6 +943,17 @@ struct State<'a> {
     capped_hours: u32,
     beyond_hours: u32,
     yield_factor: f64,
+    /// Which hours can run no pump (see [`State::quiet`]): solar power below this (W) starts
+    /// no solar pump (infinite without solar units), and whether units of the other drives
+    /// are installed.
+    solar_start_w: f64,
+    gen_units: bool,
+    grid_units: bool,
+    hand_units: bool,
+    ram_units: bool,
+    /// Lowest tank level of each month so far, m³ (∞ before its first hour); the months'
+    /// lowest level fractions are set from it by [`State::finish_months`].
+    low_m3: [f64; 12],
     /// Scratch per borehole, reused every hour.
     cap: Vec<f64>,
     bh_hand: Vec<f64>,
@@ -969,7 +981,7 @@ impl<'a> State<'a> {
         } else {
             &m.solar_years[weather.min(m.solar_years.len() - 1)].w_per_wp
         };
-        let motors = m
+        let motors: Vec<ActiveMotor> = m
             .motor_pumps
             .iter()
             .filter_map(|&i| {
@@ -985,7 +997,28 @@ impl<'a> State<'a> {
                 })
             })
             .collect();
+        let installed = |kind: DriveKind| {
+            m.scheme
+                .pumps
+                .iter()
+                .zip(&design.units)
+                .any(|(p, n)| *n > 0 && p.drive == kind)
+        };
+        let solar_start_w = motors
+            .iter()
+            .filter(|am| am.drive == DriveKind::Solar)
+            .map(|am| am.table.start_power_w)
+            .fold(f64::INFINITY, f64::min);
+        let ram_units = m
+            .ram_pumps
+            .iter()
+            .any(|&i| design.units.get(i).copied().unwrap_or(0) > 0);
         State {
+            solar_start_w,
+            gen_units: installed(DriveKind::Generator),
+            grid_units: installed(DriveKind::Grid),
+            hand_units: installed(DriveKind::Hand),
+            ram_units,
             design,
             w_per_wp,
             motors,
@@ -999,6 +1032,7 @@ impl<'a> State<'a> {
             today: vec![0.0; nb],
             hist_pos: 0,
             months: [Totals::new(); 12],
+            low_m3: [f64::INFINITY; 12],
             short_hours: 0,
             unmet_m3: 0.0,
             spell: 0,
@@ -1017,6 +1051,7 @@ impl<'a> State<'a> {
 
     fn reset_totals(&mut self) {
         self.months = [Totals::new(); 12];
+        self.low_m3 = [f64::INFINITY; 12];
         self.short_hours = 0;
         self.unmet_m3 = 0.0;
         self.spell = 0;
@@ -1028,7 +1063,114 @@ impl<'a> State<'a> {
         self.beyond_hours = 0;
     }
 
+    /// Sets each month's lowest level fraction from its lowest level: the level over the
+    /// usable volume (0 without usable volume), 1 for a month not run. Dividing the least
+    /// level once gives the least of the hourly fractions bit for bit (rounded division by a
+    /// positive number keeps the order).
+    fn finish_months(&mut self) {
+        for (t, low) in self.months.iter_mut().zip(self.low_m3) {
+            t.lowest_level_fraction = if low.is_infinite() {
+                1.0
+            } else if self.usable_m3 > 0.0 {
+                (low / self.usable_m3).min(1.0)
+            } else {
+                0.0
+            };
+        }
+    }
+
+    /// Whether no pump can run in hour `h`: no hand pumps in their hours, no generator or
+    /// grid pump in the drive's hours, no ram, and too little solar power to start any solar
+    /// pump (the night). [`State::step`] then takes [`State::quiet_step`], which does the same
+    /// arithmetic as the full step with every flow zero (bit for bit: the flows' terms are
+    /// +0.0 and drop out).
+    #[inline]
+    fn quiet(&self, m: &Model, h: usize) -> bool {
+        let hour = h % 24;
+        let solar_w = if self.w_per_wp.is_empty() {
+            0.0
+        } else {
+            self.design.array_w * self.w_per_wp[h]
+        };
+        // the full step tries a solar pump when the power is positive and reaches its start
+        // power
+        let solar_can_start = solar_w > 0.0 && solar_w >= self.solar_start_w;
+        !(solar_can_start
+            || self.ram_units
+            || (self.hand_units && m.hand_mask[hour])
+            || (self.gen_units && m.gen_mask[hour])
+            || (self.grid_units && m.grid_mask[hour]))
+    }
+
+    /// One hour in which no pump runs: the tank only drains (see [`State::quiet`]).
+    fn quiet_step(&mut self, m: &Model, h: usize) {
+        let s = &m.scheme;
+        let hour = h % 24;
+        let month = m.day_month[h / 24] as usize;
+        let demand = self.daily_demand_m3 * m.shape[h];
+        if !self.pumps_on && self.v < self.usable_m3 * s.tank.pump_start_level_fraction {
+            self.pumps_on = true;
+        }
+        let mut overflow = 0.0;
+        let mut v = self.v - demand;
+        if v > self.usable_m3 {
+            overflow = v - self.usable_m3;
+            v = self.usable_m3;
+        }
+        let mut shortfall = 0.0;
+        if v < 0.0 {
+            shortfall = -v;
+            v = 0.0;
+        }
+        self.v = v;
+        for b in 0..self.q_hist.len() {
+            self.q_hist[b][self.hist_pos] = 0.0;
+            self.q_hist[b][self.hist_pos + KERNEL_HOURS] = 0.0;
+        }
+        self.advance_history(h, hour);
+        self.low_m3[month] = self.low_m3[month].min(v);
+        let short_hour = shortfall > 1e-6;
+        self.short_hours += u32::from(short_hour);
+        self.unmet_m3 += shortfall;
+        {
+            let t = &mut self.months[month];
+            t.demand_m3 += demand;
+            t.delivered_m3 += demand - shortfall;
+            t.unmet_m3 += shortfall;
+            t.overflow_m3 += overflow;
+            t.shortfall_hours += u32::from(short_hour);
+        }
+        if short_hour {
+            self.spell += 1;
+            self.longest_spell = self.longest_spell.max(self.spell);
+        } else {
+            self.spell = 0;
+        }
+    }
+
+    /// Moves the aquifer history on by the hour just written, closing the day at hour 23.
+    #[inline]
+    fn advance_history(&mut self, h: usize, hour: usize) {
+        self.hist_pos += 1;
+        if self.hist_pos == KERNEL_HOURS {
+            self.hist_pos = 0;
+        }
+        if hour == 23 {
+            let day = h / 24;
+            for b in 0..self.day_sums.len() {
+                let slot = &mut self.day_sums[b][day % TAIL_DAYS];
+                self.day_total[b] += self.today[b] - *slot;
+                *slot = self.today[b];
+                self.today[b] = 0.0;
+            }
+        }
+    }
+
     fn step(&mut self, m: &Model, h: usize, hourly: Option<&mut Hourly>) {
+        if hourly.is_none() && self.quiet(m, h) {
+            self.quiet_step(m, h);
+            return;
+        }
         let s = &m.scheme;
         let keep_hourly = hourly.is_some();
         let hour = (h % 24) as u8;
@@ -1292,25 +1434,13 @@ impl<'a> State<'a> {
             self.q_hist[b][self.hist_pos + KERNEL_HOURS] = mean_q;
             self.today[b] += mean_q * 3600.0;
         }
-        self.hist_pos += 1;
-        if self.hist_pos == KERNEL_HOURS {
-            self.hist_pos = 0;
-        }
-        if hour == 23 {
-            let day = h / 24;
-            for b in 0..nb {
-                let slot = &mut self.day_sums[b][day % TAIL_DAYS];
-                self.day_total[b] += self.today[b] - *slot;
-                *slot = self.today[b];
-                self.today[b] = 0.0;
-            }
-        }
+        self.advance_history(h, hour as usize);
 
         // energy and fuel
         let hours = run_fraction;
-        let e_solar = p_solar * hours / 1000.0;
-        let e_gen = p_gen * hours / 1000.0;
-        let e_grid = p_grid * hours / 1000.0;
+        // W·h → kWh; a drive that gave no power gives +0.0 either way (no division then)
+        let kwh = |p_w: f64| if p_w > 0.0 { p_w * hours / 1000.0 } else { 0.0 };
+        let (e_solar, e_gen, e_grid) = (kwh(p_solar), kwh(p_gen), kwh(p_grid));
         let fuel = match &s.generator {
             Some(g) if p_gen > 0.0 => {
                 drives::generator_fuel_l_per_h(
@@ -1324,11 +1454,7 @@ impl<'a> State<'a> {
         };
 
         // totals
-        let level_frac = if self.usable_m3 > 0.0 {
-            v / self.usable_m3
-        } else {
-            0.0
-        };
+        self.low_m3[month] = self.low_m3[month].min(v);
         let short_hour = shortfall > 1e-6;
         self.short_hours += u32::from(short_hour);
         self.unmet_m3 += shortfall;
@@ -1348,7 +1474,6 @@ impl<'a> State<'a> {
             t.generator_fuel_l += fuel;
             t.hand_pumped_m3 += hand_served;
             t.ram_pumped_m3 += ram;
-            t.lowest_level_fraction = t.lowest_level_fraction.min(level_frac);
         }
         if short_hour {
             self.spell += 1;
