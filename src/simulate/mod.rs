@@ -1079,9 +1079,10 @@ impl<'a> State<'a> {
         }
     }
 
-    /// Whether no pump can run in hour `h`: no hand pumps in their hours, no generator or
-    /// grid pump in the drive's hours, no ram, and too little solar power to start any solar
-    /// pump (the night). [`State::step`] then takes [`State::quiet_step`], which does the same
+    /// Whether no pump can run in hour `h`: no hand pumps in their hours and no ram, and
+    /// either no motor pump has drive power (too little solar power to start any solar pump,
+    /// the night; no generator or grid pump in that drive's hours) or the level control
+    /// keeps the motor pumps off (tank above the start level and the pumps stopped). [`State::step`] then takes [`State::quiet_step`], which does the same
     /// arithmetic as the full step with every flow zero (bit for bit: the flows' terms are
     /// +0.0 and drop out).
     #[inline]
@@ -1095,11 +1096,14 @@ impl<'a> State<'a> {
         // the full step tries a solar pump when the power is positive and reaches its start
         // power
         let solar_can_start = solar_w > 0.0 && solar_w >= self.solar_start_w;
-        !(solar_can_start
-            || self.ram_units
-            || (self.hand_units && m.hand_mask[hour])
+        let drive = solar_can_start
             || (self.gen_units && m.gen_mask[hour])
-            || (self.grid_units && m.grid_mask[hour]))
+            || (self.grid_units && m.grid_mask[hour]);
+        // the level control of the full step: the pumps are on, or the level is below the
+        // start level at the start of the hour
+        let called =
+            self.pumps_on || self.v < self.usable_m3 * m.scheme.tank.pump_start_level_fraction;
+        !(self.ram_units || (self.hand_units && m.hand_mask[hour]) || (drive && called))
     }
 
     /// One hour in which no pump runs: the tank only drains (see [`State::quiet`]).
