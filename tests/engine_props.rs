@@ -5,6 +5,9 @@
 
 use std::path::Path;
 
+#[path = "support/samples.rs"]
+mod samples;
+
 use proptest::prelude::*;
 use proptest::test_runner::{Config, RngSeed};
 use tapplan::scheme::{Scheme, load_str};
@@ -325,16 +328,8 @@ proptest! {
 #[test]
 fn quiet_hours_shortcut_changes_nothing() {
     use tapplan::simulate::Scenario;
-    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("samples");
     let mut n = 0;
-    for e in std::fs::read_dir(dir).unwrap() {
-        let p = e.unwrap().path();
-        if p.extension().and_then(|x| x.to_str()) != Some("yaml") {
-            continue;
-        }
-        let s = tapplan::scheme::load_file(&p).unwrap().scheme;
-        let m = Model::new(&s).unwrap();
-        let d = Design::from_scheme(&s).unwrap();
+    for (p, s, m, d) in samples::every_sample() {
         let scenarios = [
             Scenario::default(),
             Scenario {

@@ -6,6 +6,9 @@
 
 use std::path::Path;
 
+#[path = "support/samples.rs"]
+mod samples;
+
 use tapplan::scheme::{Scheme, load_str};
 use tapplan::simulate::{Design, Model, YearResult};
 
@@ -444,14 +447,7 @@ fn pumped_well_drawdown_matches_cooper_jacob() {
 #[test]
 fn every_sample_conserves_water() {
     let mut n = 0;
-    for entry in std::fs::read_dir("samples").unwrap() {
-        let p = entry.unwrap().path();
-        if p.extension().and_then(|e| e.to_str()) != Some("yaml") {
-            continue;
-        }
-        let s = tapplan::scheme::load_file(&p).unwrap().scheme;
-        let m = Model::new(&s).unwrap();
-        let d = Design::from_scheme(&s).unwrap();
+    for (p, s, m, d) in samples::every_sample() {
         for offset in [0, s.info.horizon_years] {
             for w in (0..m.weather_years()).step_by(7) {
                 let r = m.run_year(&d, offset, w, false);

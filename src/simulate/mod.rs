@@ -910,6 +910,17 @@ fn past_drawdown(
     s + mean_q * k.tail
 }
 
+/// The level `v` (m³) at the end of an hour in a tank of `usable_m3`: above the usable volume
+/// the rest overflows. Returns (level, overflow), m³.
+#[inline]
+fn spill(usable_m3: f64, v: f64) -> (f64, f64) {
+    if v > usable_m3 {
+        (usable_m3, v - usable_m3)
+    } else {
+        (v, 0.0)
+    }
+}
+
 /// The state of one year's run.
 struct State<'a> {
     design: &'a Design,
@@ -1115,27 +1126,13 @@ impl<'a> State<'a> {
         if !self.pumps_on && self.v < self.usable_m3 * s.tank.pump_start_level_fraction {
             self.pumps_on = true;
         }
-        let mut overflow = 0.0;
-        let mut v = self.v - demand;
-        if v > self.usable_m3 {
-            overflow = v - self.usable_m3;
-            v = self.usable_m3;
-        }
-        let mut shortfall = 0.0;
-        if v < 0.0 {
-            shortfall = -v;
-            v = 0.0;
-        }
-        self.v = v;
+        let (v, overflow) = spill(self.usable_m3, self.v - demand);
+        let (shortfall, short_hour) = self.close_level(month, v);
         for b in 0..self.q_hist.len() {
             self.q_hist[b][self.hist_pos] = 0.0;
             self.q_hist[b][self.hist_pos + KERNEL_HOURS] = 0.0;
         }
         self.advance_history(h, hour);
-        self.low_m3[month] = self.low_m3[month].min(v);
-        let short_hour = shortfall > 1e-6;
-        self.short_hours += u32::from(short_hour);
-        self.unmet_m3 += shortfall;
         {
             let t = &mut self.months[month];
             t.demand_m3 += demand;
@@ -1144,12 +1141,27 @@ impl<'a> State<'a> {
             t.overflow_m3 += overflow;
             t.shortfall_hours += u32::from(short_hour);
         }
+    }
+
+    /// Sets the level at the end of hour of month `month` from `v` (m³; below empty the rest
+    /// is unmet demand) and books the shortfall: the month's lowest level, the year's
+    /// shortfall hours and unmet volume so far and the dry spell. Returns (shortfall m³,
+    /// whether the hour counts as a shortfall hour).
+    #[inline]
+    fn close_level(&mut self, month: usize, v: f64) -> (f64, bool) {
+        let (v, shortfall) = if v < 0.0 { (0.0, -v) } else { (v, 0.0) };
+        self.v = v;
+        self.low_m3[month] = self.low_m3[month].min(v);
+        let short_hour = shortfall > 1e-6;
+        self.short_hours += u32::from(short_hour);
+        self.unmet_m3 += shortfall;
         if short_hour {
             self.spell += 1;
             self.longest_spell = self.longest_spell.max(self.spell);
         } else {
             self.spell = 0;
         }
+        (shortfall, short_hour)
     }
 
     /// Moves the aquifer history on by the hour just written, closing the day at hour 23.
@@ -1365,7 +1377,7 @@ impl<'a> State<'a> {
         let v0 = self.v;
         let mut run_fraction = if motor > 0.0 { 1.0 } else { 0.0 };
         let mut overflow = 0.0;
-        let mut v;
+        let v;
         if motor > 0.0 {
             let net = motor + ram - d;
             if v0 + net > self.usable_m3 {
@@ -1410,25 +1422,8 @@ impl<'a> State<'a> {
                 v = v0 + net;
             }
         } else {
-            v = v0 + ram - d;
-            if v > self.usable_m3 {
-                overflow = v - self.usable_m3;
-                v = self.usable_m3;
-            }
+            (v, overflow) = spill(self.usable_m3, v0 + ram - d);
         }
-        let mut shortfall = 0.0;
-        if v < 0.0 {
-            shortfall = -v;
-            v = 0.0;
-        }
-        self.v = v;
-        let motor_used = motor * run_fraction;
-        let pumped = motor_used + ram + hand_served;
-        let delivered = demand - shortfall;
-        debug_assert!(
-            (pumped - delivered - overflow - (v - v0)).abs() <= 1e-6 * (1.0 + pumped + demand),
-            "water balance broken at hour {h}"
-        );
 
         // aquifer history: the hour's mean flow per borehole
         for b in 0..nb {
@@ -1438,6 +1433,16 @@ impl<'a> State<'a> {
             self.q_hist[b][self.hist_pos + KERNEL_HOURS] = mean_q;
             self.today[b] += mean_q * 3600.0;
         }
+
+        let (shortfall, short_hour) = self.close_level(month, v);
+        let v = self.v;
+        let motor_used = motor * run_fraction;
+        let pumped = motor_used + ram + hand_served;
+        let delivered = demand - shortfall;
+        debug_assert!(
+            (pumped - delivered - overflow - (v - v0)).abs() <= 1e-6 * (1.0 + pumped + demand),
+            "water balance broken at hour {h}"
+        );
         self.advance_history(h, hour as usize);
 
         // energy and fuel
@@ -1458,10 +1463,6 @@ impl<'a> State<'a> {
         };
 
         // totals
-        self.low_m3[month] = self.low_m3[month].min(v);
-        let short_hour = shortfall > 1e-6;
-        self.short_hours += u32::from(short_hour);
-        self.unmet_m3 += shortfall;
         {
             let t = &mut self.months[month];
             t.demand_m3 += demand;
@@ -1478,12 +1479,6 @@ impl<'a> State<'a> {
             t.generator_fuel_l += fuel;
             t.hand_pumped_m3 += hand_served;
             t.ram_pumped_m3 += ram;
-        }
-        if short_hour {
-            self.spell += 1;
-            self.longest_spell = self.longest_spell.max(self.spell);
-        } else {
-            self.spell = 0;
         }
         if let Some(hr) = hourly {
             hr.demand_m3.push(demand);

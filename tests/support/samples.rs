@@ -1,0 +1,27 @@
+//! The bundled samples, loaded and prepared, for tests that run every one of them.
+
+use std::path::{Path, PathBuf};
+
+use tapplan::scheme::Scheme;
+use tapplan::simulate::{Design, Model};
+
+/// Every `samples/*.yaml` in name order: its path, scheme, prepared model and the file's own
+/// design.
+pub fn every_sample() -> Vec<(PathBuf, Scheme, Model, Design)> {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("samples");
+    let mut paths: Vec<PathBuf> = std::fs::read_dir(dir)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().and_then(|x| x.to_str()) == Some("yaml"))
+        .collect();
+    paths.sort();
+    paths
+        .into_iter()
+        .map(|p| {
+            let s = tapplan::scheme::load_file(&p).unwrap().scheme;
+            let m = Model::new(&s).unwrap();
+            let d = Design::from_scheme(&s).unwrap();
+            (p, s, m, d)
+        })
+        .collect()
+}
