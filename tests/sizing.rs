@@ -150,9 +150,15 @@ fn run_of_the_chosen_design_repeats_the_sized_figures() {
 /// The branch-and-bound search against brute force: on a narrowed copy of the hand-and-solar
 /// sample (every design in its ranges judged on the full ensemble), the cheapest design that
 /// meets the target, and the cheapest for each unit count, have the costs the search reports.
-/// A sample with each `(from, to)` replaced once; every `from` must be there.
-fn narrow(text: &str, swaps: &[(&str, &str)]) -> String {
-    let mut out = text.to_string();
+/// The text of `samples/<sample>` with each `(from, to)` replaced once; every `from` must be
+/// there.
+fn narrow(sample: &str, swaps: &[(&str, &str)]) -> String {
+    let mut out = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("samples")
+            .join(sample),
+    )
+    .unwrap();
     for (from, to) in swaps {
         assert_eq!(
             out.matches(from).count(),
@@ -235,12 +241,8 @@ fn search_matches_brute_force(name: &str, text: &str) {
 
 #[test]
 fn search_finds_the_cheapest_design_that_brute_force_finds() {
-    let text = std::fs::read_to_string(
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/sabuya-handpumps.yaml"),
-    )
-    .unwrap();
     let narrowed = narrow(
-        &text,
+        "sabuya-handpumps.yaml",
         &[
             (
                 "array_range_kwp: {min_kwp: 0.5, max_kwp: 4.0, module_kwp: 0.25}",
@@ -257,12 +259,8 @@ fn search_finds_the_cheapest_design_that_brute_force_finds() {
 fn search_over_arrays_finds_what_brute_force_finds() {
     // Solar only, several arrays and unit counts: exercises the branch and bound over arrays,
     // the bisection that stops when a bracket gets too dear, and the inferred verdicts.
-    let text = std::fs::read_to_string(
-        Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/kessa-ridge-solar.yaml"),
-    )
-    .unwrap();
     let narrowed = narrow(
-        &text,
+        "kessa-ridge-solar.yaml",
         &[
             (
                 "array_range_kwp: {min_kwp: 3.0, max_kwp: 18.0, module_kwp: 0.5}",
