@@ -1093,9 +1093,10 @@ impl<'a> State<'a> {
     /// Whether no pump can run in hour `h`: no hand pumps in their hours and no ram, and
     /// either no motor pump has drive power (too little solar power to start any solar pump,
     /// the night; no generator or grid pump in that drive's hours) or the level control
-    /// keeps the motor pumps off (tank above the start level and the pumps stopped). [`State::step`] then takes [`State::quiet_step`], which does the same
-    /// arithmetic as the full step with every flow zero (bit for bit: the flows' terms are
-    /// +0.0 and drop out).
+    /// keeps the motor pumps off (tank above the start level and the pumps stopped).
+    /// [`State::step`] then takes [`State::quiet_step`], which does the same arithmetic as
+    /// the full step with every flow zero (bit for bit: the flows' terms are +0.0 and drop
+    /// out).
     #[inline]
     fn quiet(&self, m: &Model, h: usize) -> bool {
         let hour = h % 24;
