@@ -3,22 +3,32 @@
 //! chosen design gives the same shortfall hours as `tapplan size`; shortfall does not rise as
 //! the tank grows (the monotonicity the bisection assumes).
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::process::Command;
 
 use tapplan::scheme::load_file;
 use tapplan::simulate::{Design, Model, meets_target};
 use tapplan::sizing::{size_with_model, tank_candidates};
 
-fn samples() -> Vec<PathBuf> {
-    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("samples");
-    let mut v: Vec<PathBuf> = std::fs::read_dir(dir)
-        .unwrap()
-        .map(|e| e.unwrap().path())
-        .filter(|p| p.extension().is_some_and(|x| x == "yaml"))
-        .collect();
-    v.sort();
-    v
+#[path = "support/samples.rs"]
+mod support_samples;
+use support_samples::sample_paths as samples;
+
+/// `tapplan size FILE --json -` with `threads` worker threads (RAYON_NUM_THREADS): the plan's
+/// JSON bytes; the command must succeed.
+fn size_json(path: &Path, threads: &str) -> Vec<u8> {
+    let out = Command::new(env!("CARGO_BIN_EXE_tapplan"))
+        .env("RAYON_NUM_THREADS", threads)
+        .args(["size", path.to_str().unwrap(), "--json", "-"])
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}: {}",
+        path.display(),
+        String::from_utf8_lossy(&out.stderr)
+    );
+    out.stdout
 }
 
 #[test]
@@ -94,12 +104,7 @@ fn shortfall_does_not_rise_with_tank_size_on_the_samples() {
 fn run_of_the_chosen_design_repeats_the_sized_figures() {
     let bin = env!("CARGO_BIN_EXE_tapplan");
     for path in samples() {
-        let out = Command::new(bin)
-            .args(["size", path.to_str().unwrap(), "--json", "-"])
-            .output()
-            .unwrap();
-        assert_eq!(out.status.code(), Some(0), "{}", path.display());
-        let plan: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        let plan: serde_json::Value = serde_json::from_slice(&size_json(&path, "2")).unwrap();
         let d = &plan["chosen"]["design"];
         let loaded = load_file(&path).unwrap();
         let mut args: Vec<String> = vec![
@@ -346,16 +351,7 @@ fn first_failing_years_equal_the_whole_horizon_run_year_by_year() {
 fn size_json_holds_a_horizon_row_for_every_year() {
     let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/tolomba-market-generator.yaml");
     let h = load_file(&path).unwrap().scheme.info.horizon_years as usize;
-    let out = Command::new(env!("CARGO_BIN_EXE_tapplan"))
-        .args(["size", path.to_str().unwrap(), "--json", "-"])
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&size_json(&path, "2")).unwrap();
     let rows = v["report"]["horizon"].as_array().unwrap();
     assert_eq!(rows.len(), h + 1);
     let years: Vec<i64> = rows.iter().map(|r| r["year"].as_i64().unwrap()).collect();
@@ -367,23 +363,10 @@ fn size_prints_the_same_bytes_with_one_thread_or_two() {
     // The search runs ensembles and the presentation tables side by side; neither the figures
     // nor the count of year-simulations may depend on how many threads ran them.
     let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/sabuya-handpumps.yaml");
-    let run = |threads: &str| {
-        let out = Command::new(env!("CARGO_BIN_EXE_tapplan"))
-            .env("RAYON_NUM_THREADS", threads)
-            .args(["size", path.to_str().unwrap(), "--json", "-"])
-            .output()
-            .unwrap();
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
-        );
-        out.stdout
-    };
-    let one = run("1");
+    let one = size_json(&path, "1");
     assert!(!one.is_empty());
     assert!(
-        one == run("2"),
+        one == size_json(&path, "2"),
         "size --json differs between one thread and two"
     );
 }
