@@ -401,10 +401,6 @@ impl Search<'_> {
             array_w,
         };
         let top = self.tanks.len() - 1;
-        // With `hi` unknown the largest tank is checked before the bisection (`top_first`: one
-        // check tells an array that cannot meet the target at all), or the bisection runs as if
-        // it passed and checks it only if the answer comes out there (one check fewer when it
-        // does not).
         if !worth(lo.min(top)) {
             return TankIn::Pruned(lo.min(top));
         }
@@ -420,6 +416,10 @@ impl Search<'_> {
             }
             lo += 1;
         }
+        // With `hi` unknown the largest tank is checked before the bisection (`top_first`: one
+        // check tells an array that cannot meet the target at all), or the bisection runs as if
+        // it passed and checks it only if the answer comes out there (one check fewer when it
+        // does not).
         if known_hi.is_none() && top_first && !self.passes(&d(self.tanks[top]), self.horizon) {
             return TankIn::Fails;
         }
