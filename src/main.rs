@@ -9,7 +9,7 @@ use std::process::ExitCode;
 use clap::Parser;
 
 use cli::{Cli, Command};
-use tapplan::output::files::write_output;
+use tapplan::output::files::{WriteError, write_output};
 
 /// Returns the outcome from a command when a step has already reported its failure.
 macro_rules! tryo {
@@ -19,6 +19,22 @@ macro_rules! tryo {
             Err(o) => return Ok(o),
         }
     };
+}
+
+/// `println!` and `print!` to standard output that hand a write error to the caller: a reader
+/// that closes the pipe early (`tapplan run … | head`) ends the program quietly (see
+/// [`closed_pipe`]) instead of a panic.
+macro_rules! outln {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        writeln!(std::io::stdout().lock(), $($arg)*)?
+    }};
+}
+macro_rules! out {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        write!(std::io::stdout().lock(), $($arg)*)?
+    }};
 }
 
 /// How a command ended.
@@ -40,11 +56,32 @@ fn main() -> ExitCode {
         Ok(Outcome::Ok) => ExitCode::SUCCESS,
         Ok(Outcome::Failed) => ExitCode::from(1),
         Ok(Outcome::BadInput) => ExitCode::from(2),
+        // the reader of standard output has gone: nothing is left to tell it
+        Err(e) if closed_pipe(&e) => ExitCode::SUCCESS,
         Err(e) => {
             eprintln!("error: {e:#}");
             ExitCode::from(2)
         }
     }
+}
+
+/// Writes an output whole (see [`write_output`]). When the output is standard output and its
+/// reader has closed the pipe, the reader has all it wanted: that is not an error.
+fn emit(path: &Path, bytes: &[u8], inputs: &[&Path]) -> Result<(), WriteError> {
+    match write_output(path, bytes, inputs) {
+        Err(WriteError::Io { source, .. }) if source.kind() == std::io::ErrorKind::BrokenPipe => {
+            Ok(())
+        }
+        r => r,
+    }
+}
+
+/// Whether an error comes from writing to a pipe whose reader has closed it.
+fn closed_pipe(e: &anyhow::Error) -> bool {
+    e.chain().any(|c| {
+        c.downcast_ref::<std::io::Error>()
+            .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe)
+    })
 }
 
 fn run(cli: Cli) -> anyhow::Result<Outcome> {
@@ -133,21 +170,21 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
     let cur = &s.info.currency;
     let json_stdout = a.json.as_ref().is_some_and(|p| p.as_os_str() == "-");
     if !json_stdout {
-        println!("{}", s.info.name);
-        print!("{}", table::plan_summary(&plan, cur));
+        outln!("{}", s.info.name);
+        out!("{}", table::plan_summary(&plan, cur));
         if !plan.alternatives.is_empty() {
-            println!("{}", table::alternatives_table(&plan, cur));
+            outln!("{}", table::alternatives_table(&plan, cur));
         }
         if !plan.front.is_empty() {
-            println!("{}", table::front_table(&plan, cur));
+            outln!("{}", table::front_table(&plan, cur));
         }
         if !plan.staging.is_empty() {
-            println!("{}", table::staging_table(&plan, cur));
+            outln!("{}", table::staging_table(&plan, cur));
         }
         if !plan.sensitivity.is_empty() {
-            println!("{}", table::sensitivity_table(&plan, cur));
+            outln!("{}", table::sensitivity_table(&plan, cur));
         }
-        println!(
+        outln!(
             "Search: {} pump sets × {} array sizes × {} tank sizes = {} designs in the ranges; {} ensemble checks, {} year-simulations.",
             plan.stats.pump_sets,
             plan.stats.array_sizes,
@@ -157,14 +194,14 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
             plan.stats.year_simulations
         );
         for n in &plan.notes {
-            println!("note: {n}");
+            outln!("note: {n}");
         }
     }
     if let Some(p) = &a.json {
         let mut text = serde_json::to_string_pretty(&plan)?;
         text.push('\n');
         let inputs: [&Path; 1] = [&a.file];
-        write_output(p, text.as_bytes(), &inputs)
+        emit(p, text.as_bytes(), &inputs)
             .map_err(|e| anyhow::anyhow!("could not write the JSON: {e}"))?;
     }
     Ok(if plan.chosen.is_some() {
@@ -229,39 +266,39 @@ fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {
         |p: &Option<std::path::PathBuf>| p.as_ref().is_some_and(|p| p.as_os_str() == "-");
     let quiet_tables = a.quiet || to_stdout(&a.hourly) || to_stdout(&a.json);
     if !quiet_tables {
-        println!("{}", s.info.name);
-        println!(
+        outln!("{}", s.info.name);
+        outln!(
             "{}",
             table::annual_table(&r.year, r.storage_days_of_average_demand)
         );
-        println!("{}", table::monthly_table(&r.year));
+        outln!("{}", table::monthly_table(&r.year));
         if r.first_year.years_run > 1 {
-            println!("{}", table::ensemble_table(&r.first_year, &r.horizon_year));
+            outln!("{}", table::ensemble_table(&r.first_year, &r.horizon_year));
         }
-        println!("{}", table::horizon_table(&r));
-        println!("Operating rules of this run:");
+        outln!("{}", table::horizon_table(&r));
+        outln!("Operating rules of this run:");
         for rule in &r.rules {
-            println!("  - {rule}");
+            outln!("  - {rule}");
         }
         for w in &r.warnings {
-            println!("  warning: {w}");
+            outln!("  warning: {w}");
         }
     }
     let inputs: [&Path; 1] = [&a.file];
     if let Some(p) = &a.hourly {
         let hourly = r.year.hourly.as_ref().expect("hourly kept");
         let text = tapplan::output::csv::hourly_csv(r.year.year, hourly);
-        write_output(p, text.as_bytes(), &inputs)
+        emit(p, text.as_bytes(), &inputs)
             .map_err(|e| anyhow::anyhow!("could not write the hourly CSV: {e}"))?;
     }
     if let Some(p) = &a.json {
         let mut text = serde_json::to_string_pretty(&r)?;
         text.push('\n');
-        write_output(p, text.as_bytes(), &inputs)
+        emit(p, text.as_bytes(), &inputs)
             .map_err(|e| anyhow::anyhow!("could not write the JSON: {e}"))?;
     }
     if !(to_stdout(&a.hourly) || to_stdout(&a.json)) {
-        println!("{}", table::run_summary_line(&r));
+        outln!("{}", table::run_summary_line(&r));
     } else {
         eprintln!("{}", table::run_summary_line(&r));
     }
@@ -272,7 +309,7 @@ fn cmd_new(a: cli::NewArgs) -> anyhow::Result<Outcome> {
     use tapplan::templates::{TEMPLATES, find};
     if a.list {
         for t in TEMPLATES {
-            println!("{:<10} {}", t.name, t.about);
+            outln!("{:<10} {}", t.name, t.about);
         }
         return Ok(Outcome::Ok);
     }
@@ -295,8 +332,8 @@ fn cmd_new(a: cli::NewArgs) -> anyhow::Result<Outcome> {
         );
         return Ok(Outcome::BadInput);
     }
-    write_output(&file, t.text.as_bytes(), &[])?;
-    println!(
+    emit(&file, t.text.as_bytes(), &[])?;
+    outln!(
         "wrote '{}' from the `{}` template; edit it, then run `tapplan check {}`",
         file.display(),
         t.name,
@@ -339,7 +376,7 @@ fn cmd_check(a: cli::CheckArgs) -> anyhow::Result<Outcome> {
             files: &checks,
             summary,
         };
-        println!("{}", serde_json::to_string_pretty(&out)?);
+        outln!("{}", serde_json::to_string_pretty(&out)?);
         for fc in &checks {
             if let Some(t) = &fc.error_text {
                 eprint!("{t}");
@@ -347,38 +384,38 @@ fn cmd_check(a: cli::CheckArgs) -> anyhow::Result<Outcome> {
         }
     } else {
         if let Some(d) = &rules.district {
-            println!(
+            outln!(
                 "Rules: defaults changed by {} ({d})",
                 rules.file.as_deref().unwrap_or("?")
             );
         } else if let Some(f) = &rules.file {
-            println!("Rules: defaults changed by {f}");
+            outln!("Rules: defaults changed by {f}");
         }
         for fc in &checks {
             if let Some(t) = &fc.error_text {
                 eprint!("{t}");
-                println!("{}: invalid (see the problems above)\n", fc.file);
+                outln!("{}: invalid (see the problems above)\n", fc.file);
                 continue;
             }
-            println!(
+            outln!(
                 "{}: valid — {}",
                 fc.file,
                 fc.scheme.as_deref().unwrap_or("")
             );
             match (&fc.design, &fc.note) {
-                (Some(d), _) => println!("  design in the file: {d}"),
-                (None, Some(n)) => println!("  {n}"),
+                (Some(d), _) => outln!("  design in the file: {d}"),
+                (None, Some(n)) => outln!("  {n}"),
                 _ => {}
             }
             for w in &fc.warnings {
-                println!("  warning: {w}");
+                outln!("  warning: {w}");
             }
-            println!("{}", render::outcomes_table(fc));
-            print!("{}", render::outcome_notes(fc));
-            println!();
+            outln!("{}", render::outcomes_table(fc));
+            out!("{}", render::outcome_notes(fc));
+            outln!();
         }
-        println!("{}", render::summary_table(&checks));
-        println!("{}", summary.line());
+        outln!("{}", render::summary_table(&checks));
+        outln!("{}", summary.line());
     }
     Ok(if summary.invalid > 0 {
         Outcome::BadInput
@@ -393,20 +430,20 @@ fn cmd_rules(a: cli::RulesArgs) -> anyhow::Result<Outcome> {
     use tapplan::rules::render;
     let rules = tryo!(rule_set(&a.rules));
     if a.json {
-        println!(
+        outln!(
             "{}",
             serde_json::to_string_pretty(&render::RuleSetView::of(&rules))?
         );
         return Ok(Outcome::Ok);
     }
     match (&rules.file, &rules.district) {
-        (Some(f), Some(d)) => println!("Rules in force: defaults changed by {f} ({d})"),
-        (Some(f), None) => println!("Rules in force: defaults changed by {f}"),
-        _ => println!("Rules in force: the defaults"),
+        (Some(f), Some(d)) => outln!("Rules in force: defaults changed by {f} ({d})"),
+        (Some(f), None) => outln!("Rules in force: defaults changed by {f}"),
+        _ => outln!("Rules in force: the defaults"),
     }
-    println!("{}", render::rules_table(&rules));
-    println!("Sources:");
-    print!("{}", render::references(&rules));
+    outln!("{}", render::rules_table(&rules));
+    outln!("Sources:");
+    out!("{}", render::references(&rules));
     Ok(Outcome::Ok)
 }
 
@@ -468,7 +505,7 @@ fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
         }
     };
     let inputs: [&Path; 1] = [&a.file];
-    if let Err(e) = write_output(&a.output, &run.pdf, &inputs) {
+    if let Err(e) = emit(&a.output, &run.pdf, &inputs) {
         eprintln!("error: {e}");
         return Ok(Outcome::BadInput);
     }
@@ -484,8 +521,8 @@ fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
     if a.output.as_os_str() == "-" {
         eprintln!("{line}");
     } else {
-        println!("{line}");
-        println!("wrote '{}' ({} bytes)", a.output.display(), run.pdf.len());
+        outln!("{line}");
+        outln!("wrote '{}' ({} bytes)", a.output.display(), run.pdf.len());
     }
     Ok(if run.target_met {
         Outcome::Ok
@@ -553,12 +590,12 @@ fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
             return Ok(Outcome::BadInput);
         }
         let inputs: [&Path; 1] = [&a.pdf];
-        if let Err(e) = write_output(out, &scheme_bytes, &inputs) {
+        if let Err(e) = emit(out, &scheme_bytes, &inputs) {
             eprintln!("error: {e}");
             return Ok(Outcome::BadInput);
         }
         if out.as_os_str() != "-" {
-            println!(
+            outln!(
                 "wrote the embedded scheme file to '{}' ({} bytes)",
                 out.display(),
                 scheme_bytes.len()
@@ -652,20 +689,20 @@ fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
     let diffs = stored.differences(&run.figures);
     let same_bytes = run.pdf == pdf;
     if diffs.is_empty() {
-        println!("figures match: {}", stored.design);
+        outln!("figures match: {}", stored.design);
     } else {
-        println!("figures DIFFER ({}):", diffs.len());
+        outln!("figures DIFFER ({}):", diffs.len());
         for d in &diffs {
-            println!("  {d}");
+            outln!("  {d}");
         }
     }
     if same_bytes {
-        println!(
+        outln!(
             "bytes match: the re-run gives this PDF exactly ({} bytes)",
             pdf.len()
         );
     } else {
-        println!(
+        outln!(
             "bytes DIFFER: the re-run gives {} bytes, the file has {}",
             run.pdf.len(),
             pdf.len()

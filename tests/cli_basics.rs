@@ -63,6 +63,55 @@ fn every_template_written_by_new_checks_clean() {
     }
 }
 
+/// A template's own design runs as written: the hand template's solar option has 0 units, so
+/// it needs no array size.
+#[test]
+fn every_template_written_by_new_runs() {
+    for t in TEMPLATES {
+        let dir = tempfile::tempdir().unwrap();
+        tapplan()
+            .current_dir(dir.path())
+            .args(["new", "x.yaml", "--template", t])
+            .assert()
+            .code(0);
+        tapplan()
+            .current_dir(dir.path())
+            .args(["run", "x.yaml", "--quiet"])
+            .assert()
+            .code(0)
+            .stdout(predicate::str::contains(": shortfall "));
+    }
+}
+
+/// A reader that stops early (`tapplan run … --hourly - | head`) ends tapplan quietly: status
+/// 0 and no panic. The hourly CSV (8,760 rows) is far larger than a pipe's buffer, so the
+/// writes after the reader has gone surely fail.
+#[test]
+fn a_closed_pipe_ends_quietly() {
+    use std::io::Read;
+    use std::process::{Command as Std, Stdio};
+    let mut child = Std::new(env!("CARGO_BIN_EXE_tapplan"))
+        .current_dir(root())
+        .args([
+            "run",
+            "samples/tolomba-market-generator.yaml",
+            "--hourly",
+            "-",
+        ])
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let mut first = [0u8; 16];
+    child.stdout.take().unwrap().read_exact(&mut first).unwrap();
+    // the read end is dropped here
+    let out = child.wait_with_output().unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(0), "stderr: {stderr}");
+    assert!(!stderr.contains("panicked"), "stderr: {stderr}");
+    assert!(!stderr.contains("error"), "stderr: {stderr}");
+}
+
 #[test]
 fn templates_in_the_binary_are_the_files_in_templates() {
     for t in TEMPLATES {

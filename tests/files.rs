@@ -57,11 +57,23 @@ fn names(dir: &Path) -> Vec<String> {
 fn killed_run_leaves_the_previous_output_byte_for_byte() {
     let dir = tempfile::tempdir().unwrap();
     let scheme = slow_scheme(dir.path());
+    let bin = assert_cmd::cargo::cargo_bin("tapplan");
+    // a whole run first, to time it on this machine: the kills below come at fixed fractions
+    // of that time, so they land mid-run however fast the machine is
+    let start = std::time::Instant::now();
+    let whole = std::process::Command::new(&bin)
+        .current_dir(dir.path())
+        .args(["run", "slow.yaml", "--json", "whole.json", "--quiet"])
+        .output()
+        .unwrap();
+    let took = start.elapsed();
+    assert_eq!(whole.status.code(), Some(0));
+    std::fs::remove_file(dir.path().join("whole.json")).unwrap();
     let out = dir.path().join("out.json");
     let previous = b"{\"previous\": \"run\", \"bytes\": [1, 2, 3]}\n".to_vec();
     std::fs::write(&out, &previous).unwrap();
-    let bin = assert_cmd::cargo::cargo_bin("tapplan");
-    for delay_ms in [300u64, 1500] {
+    for fraction in [0.1, 0.4] {
+        let delay = took.mul_f64(fraction);
         let mut child = std::process::Command::new(&bin)
             .current_dir(dir.path())
             .args(["run", "slow.yaml", "--json", "out.json"])
@@ -69,19 +81,15 @@ fn killed_run_leaves_the_previous_output_byte_for_byte() {
             .stderr(Stdio::null())
             .spawn()
             .unwrap();
-        std::thread::sleep(Duration::from_millis(delay_ms));
+        std::thread::sleep(delay);
         let still_running = child.try_wait().unwrap().is_none();
         child.kill().unwrap(); // SIGKILL on Unix
         let _ = child.wait();
         assert!(
             still_running,
-            "the slow scheme finished within {delay_ms} ms; make it slower"
+            "the slow scheme finished within {delay:?} ({fraction} of a whole run, {took:?})"
         );
-        assert_eq!(
-            std::fs::read(&out).unwrap(),
-            previous,
-            "after {delay_ms} ms"
-        );
+        assert_eq!(std::fs::read(&out).unwrap(), previous, "after {delay:?}");
         let left = names(dir.path());
         assert!(
             left.iter()

@@ -134,6 +134,47 @@ fn zero_tank_is_refused_with_exit_2() {
     assert!(out.stdout.is_empty());
 }
 
+/// The array size is needed only while the design runs a solar unit: without one the run
+/// needs no `array_kwp`, with one it says which field or option gives it.
+#[test]
+fn array_size_is_asked_for_only_when_a_solar_unit_runs() {
+    let dir = tempfile::tempdir().unwrap();
+    let text_in = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/sabuya-handpumps.yaml"),
+    )
+    .unwrap();
+    let without = text_in.replace("    array_kwp: 1.0\n", "");
+    assert_ne!(without, text_in, "the sample states its array size");
+    let f = dir.path().join("no-array.yaml");
+    std::fs::write(&f, without).unwrap();
+    let f = f.to_str().unwrap();
+
+    // hand pumps only: runs
+    let out = tapplan(&["run", f, "--quiet", "--pumps", "SolarSub-3=0"]);
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    let line = text(&out.stdout);
+    assert!(
+        line.starts_with("10 m³ tank, 3 × Lever hand pump: shortfall "),
+        "{line}"
+    );
+
+    // the solar unit without an array size: refused, naming the field and the option
+    let out = tapplan(&["run", f, "--quiet"]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = text(&out.stderr);
+    assert!(
+        err.contains("drives.solar.array_kwp") && err.contains("--array-kwp"),
+        "{err}"
+    );
+    assert!(out.stdout.is_empty());
+
+    // given on the command line, the run is the sample's own
+    let given = tapplan(&["run", f, "--quiet", "--array-kwp", "1"]);
+    let sample = tapplan(&["run", "samples/sabuya-handpumps.yaml", "--quiet"]);
+    assert_eq!(given.status.code(), Some(0), "{}", text(&given.stderr));
+    assert_eq!(text(&given.stdout), text(&sample.stdout));
+}
+
 #[test]
 fn output_is_byte_identical_across_runs() {
     let dir = tempfile::tempdir().unwrap();
