@@ -1555,24 +1555,20 @@ pub fn resolve_design(s: &Scheme, o: &DesignOverrides) -> Result<Design, String>
         .iter()
         .zip(&out)
         .any(|(p, n)| *n > 0 && p.drive == DriveKind::Solar);
-    let array_w = match o.array_kwp {
-        Some(k) if k.is_finite() && k > 0.0 && k <= 1000.0 => k * 1000.0,
-        Some(k) => {
+    let array_w = match (o.array_kwp, s.solar.as_ref().and_then(|x| x.array_peak_w)) {
+        _ if !s.uses_solar() => 0.0,
+        (Some(k), _) if k.is_finite() && k > 0.0 && k <= 1000.0 => k * 1000.0,
+        (Some(k), _) => {
             return Err(format!(
                 "--array-kwp {k}: give an array size above 0 and up to 1000 kWp"
             ));
         }
-        None if solar_installed => s.solar.as_ref().and_then(|x| x.array_peak_w).ok_or(
-            "the design installs a solar pump but the file gives no drives.solar.array_kwp; give one or use --array-kwp",
-        )?,
-        None => s
-            .solar
-            .as_ref()
-            .and_then(|x| x.array_peak_w)
-            .unwrap_or(0.0),
+        (None, Some(w)) => w,
+        (None, None) if solar_installed => {
+            return Err("the design installs a solar pump but the file gives no drives.solar.array_kwp; give one or use --array-kwp".into());
+        }
+        (None, None) => 0.0,
     };
-    // an array given without any solar drive in the scheme has nothing to drive
-    let array_w = if s.uses_solar() { array_w } else { 0.0 };
     Ok(Design {
         tank_m3: tank,
         units: out,
