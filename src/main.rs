@@ -21,20 +21,20 @@ macro_rules! tryo {
     };
 }
 
-/// `println!` and `print!` to standard output that hand a write error to the caller: a reader
-/// that closes the pipe early (`tapplan run … | head`) ends the program quietly (see
-/// [`closed_pipe`]) instead of a panic.
+/// `println!` and `print!` through [`put`]: a reader that closes the pipe early
+/// (`tapplan check … | head`) gets no panic, and the exit status still tells the outcome.
 macro_rules! outln {
-    ($($arg:tt)*) => {{
-        use std::io::Write as _;
-        writeln!(std::io::stdout().lock(), $($arg)*)?
-    }};
+    () => {
+        put(format_args!(""), true)?
+    };
+    ($($arg:tt)*) => {
+        put(format_args!($($arg)*), true)?
+    };
 }
 macro_rules! out {
-    ($($arg:tt)*) => {{
-        use std::io::Write as _;
-        write!(std::io::stdout().lock(), $($arg)*)?
-    }};
+    ($($arg:tt)*) => {
+        put(format_args!($($arg)*), false)?
+    };
 }
 
 /// How a command ended.
@@ -56,8 +56,6 @@ fn main() -> ExitCode {
         Ok(Outcome::Ok) => ExitCode::SUCCESS,
         Ok(Outcome::Failed) => ExitCode::from(1),
         Ok(Outcome::BadInput) => ExitCode::from(2),
-        // the reader of standard output has gone: nothing is left to tell it
-        Err(e) if closed_pipe(&e) => ExitCode::SUCCESS,
         Err(e) => {
             eprintln!("error: {e:#}");
             ExitCode::from(2)
@@ -66,7 +64,7 @@ fn main() -> ExitCode {
 }
 
 /// Writes an output whole (see [`write_output`]). When the output is standard output and its
-/// reader has closed the pipe, the reader has all it wanted: that is not an error.
+/// reader has closed the pipe, the rest is dropped, as [`put`] does.
 fn emit(path: &Path, bytes: &[u8], inputs: &[&Path]) -> Result<(), WriteError> {
     match write_output(path, bytes, inputs) {
         Err(WriteError::Io { source, .. }) if source.kind() == std::io::ErrorKind::BrokenPipe => {
@@ -76,12 +74,18 @@ fn emit(path: &Path, bytes: &[u8], inputs: &[&Path]) -> Result<(), WriteError> {
     }
 }
 
-/// Whether an error comes from writing to a pipe whose reader has closed it.
-fn closed_pipe(e: &anyhow::Error) -> bool {
-    e.chain().any(|c| {
-        c.downcast_ref::<std::io::Error>()
-            .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe)
-    })
+/// Writes to standard output. Once its reader has closed the pipe the rest is dropped: the
+/// command still finishes, and its exit status still tells its outcome.
+fn put(args: std::fmt::Arguments, newline: bool) -> std::io::Result<()> {
+    use std::io::Write;
+    let mut o = std::io::stdout().lock();
+    let r = o
+        .write_fmt(args)
+        .and_then(|_| if newline { o.write_all(b"\n") } else { Ok(()) });
+    match r {
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
+        r => r,
+    }
 }
 
 fn run(cli: Cli) -> anyhow::Result<Outcome> {

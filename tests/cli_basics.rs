@@ -71,21 +71,14 @@ fn every_template_written_by_new_checks_clean_and_runs() {
     }
 }
 
-/// A reader that stops early (`tapplan run … --hourly - | head`) ends tapplan quietly: status
-/// 0 and no panic. The hourly CSV (8,760 rows) is far larger than a pipe's buffer, so the
-/// writes after the reader has gone surely fail.
-#[test]
-fn a_closed_pipe_ends_quietly() {
+/// Runs tapplan with `args` in `dir`, reads the first bytes of its standard output and closes
+/// the pipe; returns the exit status and standard error.
+fn with_reader_gone(dir: &Path, args: &[&str]) -> (Option<i32>, String) {
     use std::io::Read;
     use std::process::{Command as Std, Stdio};
     let mut child = Std::new(env!("CARGO_BIN_EXE_tapplan"))
-        .current_dir(root())
-        .args([
-            "run",
-            "samples/tolomba-market-generator.yaml",
-            "--hourly",
-            "-",
-        ])
+        .current_dir(dir)
+        .args(args)
         .stdout(Stdio::piped())
         .stderr(Stdio::piped())
         .spawn()
@@ -94,10 +87,51 @@ fn a_closed_pipe_ends_quietly() {
     child.stdout.take().unwrap().read_exact(&mut first).unwrap();
     // the read end is dropped here
     let out = child.wait_with_output().unwrap();
-    let stderr = String::from_utf8_lossy(&out.stderr);
-    assert_eq!(out.status.code(), Some(0), "stderr: {stderr}");
+    (
+        out.status.code(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+/// A reader that stops early (`tapplan run … --hourly - | head`) ends tapplan quietly: no
+/// panic, no error, and the exit status of the command's own outcome. The outputs (an
+/// 8,760-row hourly CSV; 100 files checked) are far larger than a pipe's buffer, so the writes
+/// after the reader has gone surely fail.
+#[test]
+fn a_closed_pipe_ends_quietly() {
+    let (code, stderr) = with_reader_gone(
+        root(),
+        &[
+            "run",
+            "samples/tolomba-market-generator.yaml",
+            "--hourly",
+            "-",
+        ],
+    );
+    assert_eq!(code, Some(0), "stderr: {stderr}");
     assert!(!stderr.contains("panicked"), "stderr: {stderr}");
     assert!(!stderr.contains("error"), "stderr: {stderr}");
+
+    // a check that fails still says so in its status (1), not 0
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(root().join("samples/tolomba-market-generator.yaml"))
+        .unwrap()
+        .replace(
+            "max_shortfall_hours_per_year: 200",
+            "max_shortfall_hours_per_year: 0",
+        );
+    assert!(text.contains("max_shortfall_hours_per_year: 0"));
+    std::fs::write(dir.path().join("strict.yaml"), text).unwrap();
+    tapplan()
+        .current_dir(dir.path())
+        .args(["check", "strict.yaml"])
+        .assert()
+        .code(1);
+    let mut args = vec!["check"];
+    args.extend(std::iter::repeat_n("strict.yaml", 100));
+    let (code, stderr) = with_reader_gone(dir.path(), &args);
+    assert_eq!(code, Some(1), "stderr: {stderr}");
+    assert!(!stderr.contains("panicked"), "stderr: {stderr}");
 }
 
 #[test]
