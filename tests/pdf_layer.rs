@@ -1,9 +1,14 @@
 //! End-to-end checks of the PDF layer: a sample plan with every block kind is rendered and read
-//! back with poppler's command-line tools (pdfinfo, pdftotext, pdfdetach), which are outside
-//! this crate. Tests needing poppler fail with a message naming the package when it is missing.
+//! back by readers outside this crate (`support/pdf_read.rs`: lopdf, pdf-extract and hayro in
+//! every run; poppler-utils in the `#[ignore]`d `*_poppler` tests that `.ci/run` runs).
+
+#[path = "support/pdf_read.rs"]
+mod pdf_read;
 
 use std::path::Path;
 use std::process::Command;
+
+use pdf_read::{A4_PT, PdfReader, Poppler, RustReader, assert_pages_render_inside, flat};
 
 use tapplan::output::pdf::{
     Align, Attachment, BarChart, BarGroup, Block, Chart, Document, LineChart, LineStyle, Meta,
@@ -203,15 +208,6 @@ fn meta() -> Meta {
     }
 }
 
-fn tool(name: &str) -> Command {
-    let ok = Command::new(name).arg("-v").output().is_ok();
-    assert!(
-        ok,
-        "`{name}` not found: install poppler-utils (apt-get install -y poppler-utils)"
-    );
-    Command::new(name)
-}
-
 fn write_pdf(dir: &Path, bytes: &[u8]) -> std::path::PathBuf {
     let p = dir.join("plan.pdf");
     std::fs::write(&p, bytes).unwrap();
@@ -219,17 +215,6 @@ fn write_pdf(dir: &Path, bytes: &[u8]) -> std::path::PathBuf {
         std::fs::write(keep, bytes).unwrap();
     }
     p
-}
-
-fn run(cmd: &mut Command) -> String {
-    let out = cmd.output().expect("tool runs");
-    assert!(
-        out.status.success(),
-        "{:?} failed: {}",
-        cmd,
-        String::from_utf8_lossy(&out.stderr)
-    );
-    String::from_utf8(out.stdout).expect("utf-8 output")
 }
 
 #[test]
@@ -276,8 +261,8 @@ fn same_bytes_across_processes() {
     );
 }
 
-#[test]
-fn poppler_reads_pages_text_and_metadata() {
+/// Pages, page size, metadata and the text of every page, read back by `reader`.
+fn reads_pages_text_and_metadata(reader: &dyn PdfReader) {
     let doc = sample_document();
     let pages = layout(&doc).unwrap().pages.len();
     let bytes = document_to_pdf(&doc, &meta()).unwrap();
@@ -285,20 +270,38 @@ fn poppler_reads_pages_text_and_metadata() {
     let dir = tempfile::tempdir().unwrap();
     let pdf = write_pdf(dir.path(), &bytes);
 
-    let info = run(tool("pdfinfo").arg(&pdf));
-    let count: usize = info
-        .lines()
-        .find_map(|l| l.strip_prefix("Pages:"))
-        .map(|v| v.trim().parse().unwrap())
-        .expect("pdfinfo prints Pages");
+    let count = reader.page_count(&pdf);
     assert_eq!(count, pages);
     // Cover+summary, charts, the 121-row table over ≥ 3 pages, 300 listing lines over ≥ 4.
     assert!((9..=14).contains(&count), "{count} pages");
-    assert!(info.contains("Kàmbà Ñdógo"), "{info}");
-    assert!(info.contains("Tank and pump sizing"));
-    assert!(info.contains("595.276 x 841.89 pts (A4)"), "{info}");
+    for (w, h) in reader.page_sizes(&pdf) {
+        assert!(
+            (w - A4_PT.0).abs() < 0.01 && (h - A4_PT.1).abs() < 0.01,
+            "{w} × {h} pt is not A4"
+        );
+    }
+    let info = reader.info(&pdf);
+    assert_eq!(
+        info.get("Title").map(String::as_str),
+        Some("Water supply plan — Kàmbà Ñdógo"),
+        "{info:?}"
+    );
+    assert_eq!(
+        info.get("Subject").map(String::as_str),
+        Some("Tank and pump sizing"),
+        "{info:?}"
+    );
 
-    let text = run(tool("pdftotext").args(["-layout"]).arg(&pdf).arg("-"));
+    let texts = reader.page_texts(&pdf);
+    assert_eq!(texts.len(), count);
+    for (i, t) in texts.iter().enumerate() {
+        assert!(
+            flat(t).contains(&format!("page {} of {count}", i + 1)),
+            "page {} lacks its footer",
+            i + 1
+        );
+    }
+    let text = flat(&texts.join("\n"));
     for needle in [
         "Kàmbà Ñdógo",
         "Ōkasa",
@@ -307,20 +310,38 @@ fn poppler_reads_pages_text_and_metadata() {
         "Çalış Köyü",
         "Last row: Ōkasa clinic tap",
         "Table 1: Tap stands and daily draw (continued)",
-        "page 1 of",
-        &format!("page {count} of {count}"),
         "hour of year (h)",
         "litres_per_person",
         "volume (m³)",
     ] {
-        assert!(text.contains(needle), "pdftotext output lacks {needle:?}");
+        assert!(text.contains(needle), "text lacks {needle:?}");
     }
     // The header row is repeated on every page the table spans.
     assert!(text.matches("Distance from tank").count() >= 3);
 }
 
 #[test]
-fn attachment_round_trips_and_pdfdetach_lists_it() {
+fn reads_back_pages_text_and_metadata() {
+    reads_pages_text_and_metadata(&RustReader);
+}
+
+#[test]
+#[ignore = "needs poppler-utils; .ci/run runs it with --ignored"]
+fn reads_back_pages_text_and_metadata_poppler() {
+    reads_pages_text_and_metadata(&Poppler);
+}
+
+#[test]
+fn every_page_renders_inside_the_margins() {
+    let bytes = document_to_pdf(&sample_document(), &meta()).unwrap();
+    let dir = tempfile::tempdir().unwrap();
+    let pdf = write_pdf(dir.path(), &bytes);
+    // 18 mm sides and top (layout's margin), 14 mm at the foot (the footer line).
+    assert_pages_render_inside(&pdf, 18.0 * 72.0 / 25.4, 14.0 * 72.0 / 25.4);
+}
+
+/// The attachment comes back byte for byte through our own reader and `reader`.
+fn attachment_round_trips(reader: &dyn PdfReader) {
     let doc = sample_document();
     let bytes = document_to_pdf(&doc, &meta()).unwrap();
     assert_eq!(
@@ -335,15 +356,26 @@ fn attachment_round_trips_and_pdfdetach_lists_it() {
 
     let dir = tempfile::tempdir().unwrap();
     let pdf = write_pdf(dir.path(), &bytes);
-    let list = run(tool("pdfdetach").arg("-list").arg(&pdf));
-    assert!(list.contains("1 embedded files"), "{list}");
-    assert!(list.contains(YAML_NAME), "{list}");
-    let saved = dir.path().join("out.yaml");
-    run(tool("pdfdetach")
-        .args(["-save", "1", "-o"])
-        .arg(&saved)
-        .arg(&pdf));
-    assert_eq!(std::fs::read(saved).unwrap(), doc.attachments[0].bytes);
+    let back = reader.attachments(&pdf);
+    assert_eq!(
+        back.len(),
+        1,
+        "{:?}",
+        back.iter().map(|a| &a.0).collect::<Vec<_>>()
+    );
+    assert_eq!(back[0].0, YAML_NAME);
+    assert_eq!(back[0].1, doc.attachments[0].bytes);
+}
+
+#[test]
+fn attachment_round_trips_through_an_outside_reader() {
+    attachment_round_trips(&RustReader);
+}
+
+#[test]
+#[ignore = "needs poppler-utils; .ci/run runs it with --ignored"]
+fn attachment_round_trips_through_poppler() {
+    attachment_round_trips(&Poppler);
 }
 
 #[test]
@@ -362,8 +394,8 @@ fn bad_date_is_rejected_with_fix() {
     assert!(err.to_string().contains("YYYY-MM-DD"), "{err}");
 }
 
-#[test]
-fn odd_input_still_renders() {
+/// A document of empty, huge and non-finite blocks.
+fn odd_bytes() -> Vec<u8> {
     let huge_cell = "word ".repeat(3000);
     let doc = Document {
         title: String::new(),
@@ -425,14 +457,34 @@ fn odd_input_still_renders() {
         ],
         attachments: vec![],
     };
-    let bytes = document_to_pdf(&doc, &Meta::default()).unwrap();
+    document_to_pdf(&doc, &Meta::default()).unwrap()
+}
+
+#[test]
+fn odd_input_still_renders() {
+    let bytes = odd_bytes();
     let dir = tempfile::tempdir().unwrap();
     let p = dir.path().join("odd.pdf");
     std::fs::write(&p, &bytes).unwrap();
     if let Ok(keep) = std::env::var("PDF_LAYER_KEEP_ODD") {
         std::fs::write(keep, &bytes).unwrap();
     }
-    let info = run(tool("pdfinfo").arg(&p));
-    assert!(info.contains("Pages:"), "{info}");
+    assert!(RustReader.page_count(&p) >= 2);
+    assert_eq!(RustReader.page_texts(&p).len(), RustReader.page_count(&p));
+    assert!(
+        pdf_read::rasterise(&p, 0.25).len() >= 2,
+        "every page rasterises"
+    );
+    assert!(RustReader.attachments(&p).is_empty());
     assert!(list_attachments(&bytes).unwrap().is_empty());
+}
+
+#[test]
+#[ignore = "needs poppler-utils; .ci/run runs it with --ignored"]
+fn odd_input_still_renders_poppler() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("odd.pdf");
+    std::fs::write(&p, odd_bytes()).unwrap();
+    let n = Poppler.page_count(&p);
+    assert!(n >= 2, "{n} pages");
 }

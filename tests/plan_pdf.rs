@@ -1,11 +1,15 @@
 //! End-to-end checks of `tapplan plan` and `tapplan verify`: every sample is planned, the PDF
-//! is read back with poppler's command-line tools (pdfinfo, pdftotext — outside this crate),
+//! is read back by readers outside this crate (`support/pdf_read.rs`: lopdf, pdf-extract and
+//! hayro in every run; poppler-utils in the `#[ignore]`d `*_poppler` tests that `.ci/run` runs),
 //! page 1 is compared with `tapplan size --json`, the plan is verified, reproduced byte for
-//! byte, and refused or rejected where it must be. Tests needing poppler fail with a message
-//! naming the package when it is missing.
+//! byte, and refused or rejected where it must be.
+
+#[path = "support/pdf_read.rs"]
+mod pdf_read;
 
 use std::path::{Path, PathBuf};
-use std::process::Command as Std;
+
+use pdf_read::{A4_PT, PdfReader, Poppler, RustReader, assert_pages_render_inside, flat};
 
 use assert_cmd::Command;
 use tapplan::output::pdf::{Attachment, attach_files, extract_attachment, list_attachments};
@@ -16,25 +20,6 @@ fn root() -> PathBuf {
 
 fn sample(name: &str) -> PathBuf {
     root().join("samples").join(name)
-}
-
-fn tool(name: &str) -> Std {
-    let ok = Std::new(name).arg("-v").output().is_ok();
-    assert!(
-        ok,
-        "`{name}` not found: install poppler-utils (apt-get update && apt-get install -y poppler-utils)"
-    );
-    Std::new(name)
-}
-
-fn run_tool(cmd: &mut Std) -> String {
-    let out = cmd.output().expect("tool runs");
-    assert!(
-        out.status.success(),
-        "{cmd:?} failed: {}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    String::from_utf8(out.stdout).expect("utf-8 output")
 }
 
 fn tapplan() -> Command {
@@ -60,40 +45,65 @@ fn verify(pdf: &Path) -> (i32, String, String) {
     )
 }
 
-/// Text with every run of white space (line breaks of the layout included) as one space.
-fn flat(text: &str) -> String {
-    text.split_whitespace().collect::<Vec<_>>().join(" ")
-}
-
 fn fmt_g(v: f64) -> String {
     let s = format!("{v:.3}");
     s.trim_end_matches('0').trim_end_matches('.').to_string()
 }
 
-/// Plans one sample, reads it back, compares page 1 with `size --json`, verifies.
-fn full_check(name: &str) {
+/// The plan's side and top margins (18 mm, `layout::MARGIN`) and the lowest ink allowed at the
+/// foot (14 mm: the footer's baseline sits 17 mm up, its descenders and rule above 14 mm).
+const SIDE_MARGIN_PT: f64 = 18.0 * 72.0 / 25.4;
+const FOOT_MARGIN_PT: f64 = 14.0 * 72.0 / 25.4;
+
+/// Plans one sample, reads it back with `reader`, compares page 1 with `size --json`, verifies.
+fn full_check(name: &str, reader: &dyn PdfReader) -> (tempfile::TempDir, PathBuf) {
     let dir = tempfile::tempdir().unwrap();
     let pdf = dir.path().join("x.pdf");
     let src = sample(name);
     let (code, out, err) = plan(&[src.as_os_str(), "-o".as_ref(), pdf.as_os_str()]);
     assert_eq!(code, 0, "plan {name}: {out}{err}");
-    let info = run_tool(tool("pdfinfo").arg(&pdf));
-    assert!(info.contains("A4"), "{info}");
-    let pages: usize = info
-        .lines()
-        .find_map(|l| l.strip_prefix("Pages:"))
-        .map(|v| v.trim().parse().unwrap())
-        .expect("pdfinfo prints Pages");
+    let pages = reader.page_count(&pdf);
     assert!(pages >= 6, "{name}: only {pages} pages");
+    let sizes = reader.page_sizes(&pdf);
+    assert_eq!(sizes.len(), pages, "{name}: a size for every page");
+    for (w, h) in sizes {
+        assert!(
+            (w - A4_PT.0).abs() < 0.01 && (h - A4_PT.1).abs() < 0.01,
+            "{name}: page of {w} × {h} pt is not A4"
+        );
+    }
+    let texts = reader.page_texts(&pdf);
+    assert_eq!(texts.len(), pages, "{name}: text for every page");
+    for (i, t) in texts.iter().enumerate() {
+        let t = flat(t);
+        assert!(
+            t.contains(&format!("page {} of {pages}", i + 1)),
+            "{name}: page {} lacks its footer:\n{t}",
+            i + 1
+        );
+    }
+    let info = reader.info(&pdf);
+    let scheme = tapplan::scheme::load_file(&src).unwrap().scheme;
+    assert!(
+        info.get("Title")
+            .is_some_and(|t| t.starts_with("Water supply plan") && t.contains(&scheme.info.name)),
+        "{name}: info {info:?}"
+    );
+    let attached = reader.attachments(&pdf);
+    let names: Vec<&str> = attached.iter().map(|(n, _)| n.as_str()).collect();
+    assert!(names.contains(&"figures.json"), "{name}: {names:?}");
+    let yaml = attached
+        .iter()
+        .find(|(n, _)| n == "scheme.yaml")
+        .unwrap_or_else(|| panic!("{name}: no scheme.yaml in {names:?}"));
+    assert_eq!(
+        yaml.1,
+        std::fs::read(&src).unwrap(),
+        "{name}: embedded scheme differs from the file"
+    );
 
     // page 1 against `size --json`
-    let page1 = run_tool(
-        tool("pdftotext")
-            .args(["-f", "1", "-l", "1", "-layout"])
-            .arg(&pdf)
-            .arg("-"),
-    );
-    let page1 = flat(&page1);
+    let page1 = flat(&texts[0]);
     let size = tapplan()
         .args(["size"])
         .arg(&src)
@@ -108,7 +118,6 @@ fn full_check(name: &str) {
         page1.contains(&format!("{} m³", fmt_g(tank))),
         "{name}: page 1 lacks the tank {tank} m³:\n{page1}"
     );
-    let scheme = tapplan::scheme::load_file(&src).unwrap().scheme;
     let units = chosen["design"]["units"].as_array().unwrap();
     for (p, n) in scheme.pumps.iter().zip(units) {
         let n = n.as_u64().unwrap();
@@ -167,26 +176,55 @@ fn full_check(name: &str) {
         .assert()
         .code(0);
     assert_eq!(std::fs::read(&back).unwrap(), std::fs::read(&src).unwrap());
+    (dir, pdf)
 }
 
 #[test]
 fn kessa_plan_reads_back_matches_size_and_verifies() {
-    full_check("kessa-ridge-solar.yaml");
+    let (_dir, pdf) = full_check("kessa-ridge-solar.yaml", &RustReader);
+    assert_pages_render_inside(&pdf, SIDE_MARGIN_PT, FOOT_MARGIN_PT);
+}
+
+#[test]
+#[ignore = "needs poppler-utils; .ci/run runs it with --ignored"]
+fn kessa_plan_reads_back_with_poppler() {
+    full_check("kessa-ridge-solar.yaml", &Poppler);
 }
 
 #[test]
 fn sabuya_plan_reads_back_matches_size_and_verifies() {
-    full_check("sabuya-handpumps.yaml");
+    let (_dir, pdf) = full_check("sabuya-handpumps.yaml", &RustReader);
+    assert_pages_render_inside(&pdf, SIDE_MARGIN_PT, FOOT_MARGIN_PT);
+}
+
+#[test]
+#[ignore = "needs poppler-utils; .ci/run runs it with --ignored"]
+fn sabuya_plan_reads_back_with_poppler() {
+    full_check("sabuya-handpumps.yaml", &Poppler);
 }
 
 #[test]
 fn tolomba_plan_reads_back_matches_size_and_verifies() {
-    full_check("tolomba-market-generator.yaml");
+    let (_dir, pdf) = full_check("tolomba-market-generator.yaml", &RustReader);
+    assert_pages_render_inside(&pdf, SIDE_MARGIN_PT, FOOT_MARGIN_PT);
+}
+
+#[test]
+#[ignore = "needs poppler-utils; .ci/run runs it with --ignored"]
+fn tolomba_plan_reads_back_with_poppler() {
+    full_check("tolomba-market-generator.yaml", &Poppler);
 }
 
 #[test]
 fn wendi_plan_reads_back_matches_size_and_verifies() {
-    full_check("wendi-hamlet-ram.yaml");
+    let (_dir, pdf) = full_check("wendi-hamlet-ram.yaml", &RustReader);
+    assert_pages_render_inside(&pdf, SIDE_MARGIN_PT, FOOT_MARGIN_PT);
+}
+
+#[test]
+#[ignore = "needs poppler-utils; .ci/run runs it with --ignored"]
+fn wendi_plan_reads_back_with_poppler() {
+    full_check("wendi-hamlet-ram.yaml", &Poppler);
 }
 
 #[test]
@@ -254,13 +292,7 @@ fn fixed_design_is_planned_repeated_and_verified() {
         "6".as_ref(),
     ]);
     assert_eq!(code, 1, "{out}{err}");
-    let page1 = run_tool(
-        tool("pdftotext")
-            .args(["-f", "1", "-l", "1", "-layout"])
-            .arg(&pdf)
-            .arg("-"),
-    );
-    let page1 = flat(&page1);
+    let page1 = flat(&RustReader.page_texts(&pdf)[0]);
     assert!(page1.contains("NOT MET"), "{page1}");
     assert!(page1.contains("does NOT meet"), "{page1}");
     assert!(page1.contains("60 m³"), "{page1}");
