@@ -189,13 +189,14 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
             outln!("{}", table::sensitivity_table(&plan, cur));
         }
         outln!(
-            "Search: {} pump sets × {} array sizes × {} tank sizes = {} designs in the ranges; {} ensemble checks, {} year-simulations.",
+            "Search: {} pump sets × {} array sizes × {} tank sizes = {} designs in the ranges; {} ensemble checks, {} year-simulations ({} further passes to reach periodic states).",
             plan.stats.pump_sets,
             plan.stats.array_sizes,
             plan.stats.tank_sizes,
             plan.stats.designs_in_ranges,
             plan.stats.designs_evaluated,
-            plan.stats.year_simulations
+            plan.stats.year_simulations,
+            plan.stats.extra_passes
         );
         for n in &plan.notes {
             outln!("note: {n}");
@@ -291,7 +292,7 @@ fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {
     let inputs: [&Path; 1] = [&a.file];
     if let Some(p) = &a.hourly {
         let hourly = r.year.hourly.as_ref().expect("hourly kept");
-        let text = tapplan::output::csv::hourly_csv(r.year.year, hourly);
+        let text = tapplan::output::csv::hourly_csv(r.year.year, r.year.start_level_m3, hourly);
         emit(p, text.as_bytes(), &inputs)
             .map_err(|e| anyhow::anyhow!("could not write the hourly CSV: {e}"))?;
     }

@@ -116,11 +116,11 @@ fn a_closed_pipe_ends_quietly() {
     let dir = tempfile::tempdir().unwrap();
     let text = std::fs::read_to_string(root().join("samples/tolomba-market-generator.yaml"))
         .unwrap()
-        .replace(
-            "max_shortfall_hours_per_year: 200",
-            "max_shortfall_hours_per_year: 0",
-        );
-    assert!(text.contains("max_shortfall_hours_per_year: 0"));
+        .replace("capacity_m3: 100", "capacity_m3: 25");
+    assert!(
+        text.contains("capacity_m3: 25"),
+        "a tank far too small fails the target"
+    );
     std::fs::write(dir.path().join("strict.yaml"), text).unwrap();
     tapplan()
         .current_dir(dir.path())

@@ -260,6 +260,47 @@ proptest! {
         check_balance(&m.run_year(&d, 10, 0, false))?;
     }
 
+    /// Every year starts in its periodic state, so the file's (retired) starting level moves
+    /// nothing: 0, ½ and full give the same year, for tanks of up to 60 days of demand
+    /// (seasonal storage). The year's water balance closes to 1e-9 of its demand
+    /// (conservation of mass, common practice), and a year that reached its periodic state
+    /// ends at the level it started from.
+    #[test]
+    fn periodic_year_ignores_the_starting_level(p in params(), days in 0.1f64..60.0) {
+        let daily_m3 = p.population as f64 * p.per_capita_l / 1000.0;
+        let mut runs = Vec::new();
+        for initial in [0.0, 0.5, 1.0] {
+            let q = Params { tank_m3: (days * daily_m3).max(1.0), initial, ..p.clone() };
+            let s = scheme(&q);
+            prop_assert!(
+                s.warnings.iter().any(|w| w.contains("initial_level_fraction")),
+                "the retired key is named in a warning: {:?}", s.warnings
+            );
+            let r = run(&s, &design(&s, q.tank_m3));
+            let a = &r.annual;
+            let lhs = a.pumped_m3 - a.delivered_m3 - a.overflow_m3;
+            prop_assert!(
+                (lhs - r.storage_change_m3).abs() <= 1e-9 * a.demand_m3.max(1.0),
+                "pumped − delivered − overflow {} ≠ storage change {}", lhs, r.storage_change_m3
+            );
+            prop_assert!(
+                (r.storage_change_m3 - (r.end_level_m3 - r.start_level_m3)).abs() <= 1e-12 * (1.0 + r.end_level_m3)
+            );
+            if r.steady {
+                let scale = q.tank_m3 * q.usable + daily_m3;
+                prop_assert!(
+                    (r.end_level_m3 - r.start_level_m3).abs() <= 1e-4 * scale,
+                    "a periodic year ends where it starts: {} → {}", r.start_level_m3, r.end_level_m3
+                );
+            }
+            runs.push(r);
+        }
+        for r in &runs[1..] {
+            prop_assert_eq!(r.annual.shortfall_hours, runs[0].annual.shortfall_hours);
+            prop_assert_eq!(r.annual.delivered_m3.to_bits(), runs[0].annual.delivered_m3.to_bits());
+        }
+    }
+
     /// A larger tank, same pumps and drive, never gives more shortfall hours when the pumps
     /// restart as soon as the tank is below full (pump start level 1, no dead band).
     ///

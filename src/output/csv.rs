@@ -1,4 +1,7 @@
 //! CSV of the hourly series: one row per hour, ISO date-hour, units in the column names.
+//! Numbers are written in full (the shortest text that reads back as the same binary value), so
+//! the rows' water balance closes as the engine's does: for every hour,
+//! pumped − delivered − overflow = tank level at the end − tank level at the start.
 
 use std::fmt::Write;
 
@@ -13,6 +16,7 @@ pub const HOURLY_COLUMNS: &[&str] = &[
     "delivered_m3",
     "shortfall_m3",
     "overflow_m3",
+    "tank_level_start_m3",
     "tank_level_m3",
     "dynamic_water_level_m_below_ground",
     "pump_head_m",
@@ -34,14 +38,14 @@ pub fn hour_stamp(year: i32, h: usize) -> String {
 
 fn num(out: &mut String, v: f64) {
     if v.is_finite() {
-        let _ = write!(out, ",{v:.6}");
+        let _ = write!(out, ",{v}");
     } else {
         out.push(',');
     }
 }
 
-/// The hourly series as CSV text.
-pub fn hourly_csv(year: i32, h: &Hourly) -> String {
+/// The hourly series as CSV text; `start_level_m3` is the tank level when the year begins.
+pub fn hourly_csv(year: i32, start_level_m3: f64, h: &Hourly) -> String {
     let mut out = String::with_capacity(HOURS_IN_YEAR * 120);
     out.push_str(&HOURLY_COLUMNS.join(","));
     out.push('\n');
@@ -53,6 +57,11 @@ pub fn hourly_csv(year: i32, h: &Hourly) -> String {
             h.delivered_m3[i],
             h.shortfall_m3[i],
             h.overflow_m3[i],
+            if i == 0 {
+                start_level_m3
+            } else {
+                h.tank_level_m3[i - 1]
+            },
             h.tank_level_m3[i],
             h.dynamic_water_level_m[i],
             h.pump_head_m[i],

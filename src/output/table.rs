@@ -72,6 +72,35 @@ pub fn annual_table(y: &YearResult, storage_days: f64) -> Table {
         ("pumped (m³)", format!("{:.0}", a.pumped_m3)),
         ("overflow (m³)", format!("{:.1}", a.overflow_m3)),
         (
+            "tank level at start / end (m³)",
+            format!("{:.1} / {:.1}", y.start_level_m3, y.end_level_m3),
+        ),
+        (
+            "storage change (m³) = pumped − delivered − overflow",
+            format!(
+                "{:+.3}",
+                if y.storage_change_m3.abs() < 5e-4 {
+                    0.0
+                } else {
+                    y.storage_change_m3
+                }
+            ),
+        ),
+        (
+            "periodic state",
+            if y.steady {
+                format!(
+                    "reached in {} pass(es): the year ends as it starts",
+                    y.passes
+                )
+            } else {
+                format!(
+                    "no repeating state; figures settled after {} passes (the worse pass reported)",
+                    y.passes
+                )
+            },
+        ),
+        (
             "lowest tank level (% of usable)",
             pct(a.lowest_level_fraction),
         ),

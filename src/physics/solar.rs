@@ -446,6 +446,33 @@ pub fn hourly_horizontal_split_w_per_m2(
     global
 }
 
+/// The Collares-Pereira & Rabl hourly global horizontal irradiance (W/m²) for each clock hour,
+/// as the formula gives it, before the renormalisation of [`hourly_horizontal_split_w_per_m2`].
+///
+/// Formula: I_h = rt(ω_h)·H / 3600 s, ω_h = (h + 0.5 − 12)·15°, rt from
+/// [`collares_pereira_rabl_rt`]. Evaluated at hour midpoints these 24 values do not sum exactly
+/// to H; the planner uses the renormalised split, and this function shows the values before it
+/// (their sum over H is the rescaling factor's reciprocal).
+/// Source: Collares-Pereira & Rabl (1979), Solar Energy 22, 155–164; Duffie & Beckman, 3rd ed.
+/// (2006), eq. 2.13.2.
+/// Validity: as [`hourly_horizontal_split_w_per_m2`]; negative or NaN H gives all zeros.
+pub fn hourly_horizontal_unscaled_w_per_m2(
+    lat_rad: f64,
+    day_of_year: u32,
+    daily_global_horizontal_j_per_m2: f64,
+) -> [f64; 24] {
+    let mut out = [0.0; 24];
+    let h = daily_global_horizontal_j_per_m2.max(0.0);
+    if h <= 0.0 {
+        return out;
+    }
+    let g = DayGeometry::new(lat_rad, day_of_year, 0.0, 0.0, 0.0);
+    for (hour, o) in out.iter_mut().enumerate() {
+        *o = g.rt[hour] * h / SECONDS_PER_HOUR;
+    }
+    out
+}
+
 /// Mean irradiance on the array plane (W/m²) for each clock hour of a day, from the day's global
 /// horizontal total.
 ///
@@ -744,6 +771,37 @@ mod tests {
             epsilon = 1e-15
         );
         assert_eq!(collares_pereira_rabl_rt(ws, ws), 0.0);
+    }
+
+    #[test]
+    fn unscaled_hourly_split_sits_beside_the_rescaled_one() {
+        // At the equator ωs = 90° every day (D&B eq. 1.6.10 with φ = 0). Hand evaluation of
+        // D&B eq. 2.13.2 there (see the test above): a = 0.6598, b = 0.42255, and
+        // sin ωs − ωs cos ωs = 1, so rt(ω) = (π/24)(a + b cos ω) cos ω.
+        let h_j = 20.0e6;
+        let unscaled = hourly_horizontal_unscaled_w_per_m2(0.0, 80, h_j);
+        let scaled = hourly_horizontal_split_w_per_m2(0.0, 80, h_j);
+        for (hour, got) in unscaled.iter().enumerate() {
+            let w = (hour as f64 + 0.5 - 12.0) * 15.0 * DEG;
+            let rt = if w.abs() < PI / 2.0 {
+                (PI / 24.0) * (0.6598 + 0.42255 * w.cos()) * w.cos()
+            } else {
+                0.0
+            };
+            assert_relative_eq!(*got, rt * h_j / 3600.0, epsilon = 1e-6);
+        }
+        // The twelve daylight midpoints integrate rt over the day by the midpoint rule: close
+        // to the analytic integral 0.99167 (see above), so the rescaling is below 1 %.
+        let sum: f64 = unscaled.iter().sum::<f64>() * 3600.0 / h_j;
+        assert_relative_eq!(sum, 0.99167, max_relative = 2e-3);
+        // The rescaled split is the unscaled one divided by that sum, hour by hour.
+        for (s, u) in scaled.iter().zip(&unscaled) {
+            assert_relative_eq!(s * sum, *u, epsilon = 1e-6);
+        }
+        assert_eq!(
+            hourly_horizontal_unscaled_w_per_m2(0.0, 80, f64::NAN),
+            [0.0; 24]
+        );
     }
 
     #[test]

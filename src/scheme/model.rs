@@ -309,7 +309,6 @@ pub struct Tank {
     pub capacity_m3: Option<f64>,
     pub search: Option<TankSearch>,
     pub usable_fraction: f64,
-    pub initial_level_fraction: f64,
     pub pump_start_level_fraction: f64,
     pub inlet_elevation_m: f64,
     pub stand_height_m: Option<f64>,

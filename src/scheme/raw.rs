@@ -262,6 +262,7 @@ pub struct RawTank {
     pub capacity_range_m3: Option<RawTankRange>,
     pub standard_sizes_m3: Option<Vec<f64>>,
     pub usable_fraction: Option<f64>,
+    /// Retired: accepted and ignored with a warning (years start in their periodic state).
     pub initial_level_fraction: Option<f64>,
     pub pump_start_level_fraction: Option<f64>,
     pub inlet_elevation_m: f64,

@@ -1123,6 +1123,16 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
     if capacity_m3.is_none() && search.is_none() {
         c.err(f, "give capacity_m3 (the design) or capacity_range_m3 / standard_sizes_m3 (for the search)");
     }
+    if t.initial_level_fraction.is_some() {
+        c.warn(
+            &format!("{f}.initial_level_fraction"),
+            format!(
+                "{f}.initial_level_fraction is no longer used and is ignored: every simulated \
+                 year now starts in its periodic steady state (the state it ends in), so the \
+                 result does not depend on a starting level; remove the line"
+            ),
+        );
+    }
     let tank = Tank {
         capacity_m3,
         search,
@@ -1133,14 +1143,6 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
             0.3,
             1.0,
             "(share of the volume between outlet and overflow)",
-        ),
-        initial_level_fraction: c.opt_range(
-            &format!("{f}.initial_level_fraction"),
-            t.initial_level_fraction,
-            0.5,
-            0.0,
-            1.0,
-            "(of usable volume)",
         ),
         pump_start_level_fraction: c.opt_range(
             &format!("{f}.pump_start_level_fraction"),

@@ -169,6 +169,8 @@ pub struct SearchStats {
     pub designs_in_ranges: usize,
     pub designs_evaluated: usize,
     pub year_simulations: usize,
+    /// Passes over a year beyond the first, run to reach each year's periodic state.
+    pub extra_passes: usize,
 }
 
 /// The result of sizing.
@@ -1013,6 +1015,7 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
         designs_in_ranges,
         designs_evaluated: search.evaluated,
         year_simulations: m.simulations_run(),
+        extra_passes: m.extra_passes_run(),
     };
     Ok(Plan {
         scheme: s.info.name.clone(),
@@ -1055,6 +1058,7 @@ pub fn complete_horizon(m: &Model, plan: &mut Plan) {
     plan.report.first_failing_year = rows.iter().find(|r| !r.meets_target).map(|r| r.year);
     plan.report.horizon = rows;
     plan.stats.year_simulations = m.simulations_run();
+    plan.stats.extra_passes = m.extra_passes_run();
 }
 
 /// Evaluates one given design (no search) into a `Plan`: `chosen` is the design when it meets
@@ -1092,6 +1096,7 @@ pub fn evaluate_fixed(m: &Model, d: &Design) -> Result<Plan, Error> {
             designs_in_ranges: 1,
             designs_evaluated: 1,
             year_simulations: m.simulations_run(),
+            extra_passes: m.extra_passes_run(),
         },
         notes: vec![format!(
             "fixed design given on the command line ({}); no search was run, so the ranked alternatives, the cost–reliability front, the staging and the mean-day comparison are not computed",

@@ -1599,7 +1599,7 @@ fn method_section(inp: &PlanInputs, b: &mut Vec<Block>) {
     ];
     if s.uses_solar() {
         m.push("Sun geometry, extraterrestrial irradiation and the clearness index after Duffie & Beckman, Solar Engineering of Thermal Processes (3rd ed., 2006).".into());
-        m.push("Daily to hourly irradiation: Collares-Pereira & Rabl (1979) for global and Liu & Jordan (1960) for diffuse; diffuse fraction by Erbs et al. (1982); isotropic-sky transposition to the tilted array (Liu & Jordan); cell temperature by the NOCT model; PV power linear in irradiance with a temperature coefficient and a derate chain.".into());
+        m.push("Daily to hourly irradiation: Collares-Pereira & Rabl (1979) for global and Liu & Jordan (1960) for diffuse, each day's 24 hourly values rescaled so they sum exactly to the day's total (the formulas evaluated at hour midpoints miss it slightly: under 1 % at the equator); diffuse fraction by Erbs et al. (1982); isotropic-sky transposition to the tilted array (Liu & Jordan); cell temperature by the NOCT model; PV power linear in irradiance with a temperature coefficient and a derate chain.".into());
         match &s.weather.mode {
             WeatherMode::Synthetic { seed, years } => m.push(format!(
                 "Weather: {years} synthetic years (seed {seed}) of daily clearness with day-to-day persistence: a Gaussian AR(1) sequence (Graham, Hollands & Unny 1988) mapped through the Bendt, Collares-Pereira & Rabl (1981) distribution of daily clearness, each month rescaled to the given monthly mean."
