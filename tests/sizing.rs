@@ -6,6 +6,7 @@
 use std::path::Path;
 use std::process::Command;
 
+use tapplan::rules::RuleSet;
 use tapplan::scheme::load_file;
 use tapplan::simulate::{Design, Model, meets_target};
 use tapplan::sizing::{size_with_model, tank_candidates};
@@ -47,13 +48,19 @@ fn chosen_design_meets_the_target_and_the_next_smaller_tank_does_not() {
             "{}",
             path.display()
         );
-        let tanks = tank_candidates(&loaded.scheme);
+        // the tanks the search may try: the range above the storage-days rule's floor
+        let floor = tapplan::sizing::storage_floor_m3(&loaded.scheme, &RuleSet::defaults())
+            .map_or(0.0, |(_, f)| f);
+        let tanks: Vec<f64> = tank_candidates(&loaded.scheme)
+            .into_iter()
+            .filter(|t| *t >= floor - 1e-9)
+            .collect();
         let idx = tanks
             .iter()
             .position(|t| *t == chosen.design.tank_m3)
             .unwrap();
         if idx == 0 {
-            // the smallest tank in the range already meets it: nothing smaller to try
+            // the smallest tank allowed already meets it: nothing smaller to try
             assert_eq!(plan.next_smaller_tank_m3, None);
             continue;
         }
@@ -201,8 +208,13 @@ fn search_matches_brute_force(name: &str, text: &str) {
         } else {
             vec![0.0]
         };
+        let floor =
+            tapplan::sizing::storage_floor_m3(&s, &RuleSet::defaults()).map_or(0.0, |(_, f)| f);
         for a in arrays {
-            for t in tank_candidates(&s) {
+            for t in tank_candidates(&s)
+                .into_iter()
+                .filter(|t| *t >= floor - 1e-9)
+            {
                 let d = Design {
                     tank_m3: t,
                     units: units.clone(),
@@ -369,4 +381,62 @@ fn size_prints_the_same_bytes_with_one_thread_or_two() {
         one == size_json(&path, "2"),
         "size --json differs between one thread and two"
     );
+}
+
+/// One verdict: the design `size` chooses, written into the scheme as its own design, passes
+/// `check` (no rule of severity fail fails), and the plan's verdict says the same; the chosen
+/// tank stores at least the storage-days rule's minimum whenever the range allows it.
+#[test]
+fn check_passes_the_design_size_chose() {
+    use tapplan::rules::{Status, check::check_scheme};
+    let rules = RuleSet::defaults();
+    for path in samples() {
+        let loaded = load_file(&path).unwrap();
+        let m = Model::new(&loaded.scheme).unwrap();
+        let plan = size_with_model(&m).unwrap();
+        let chosen = plan.chosen.as_ref().expect("every sample has a design");
+        let verdict = plan
+            .verdict
+            .as_ref()
+            .expect("a chosen design has a verdict");
+        let mut s = loaded.scheme.clone();
+        s.tank.capacity_m3 = Some(chosen.design.tank_m3);
+        for (p, n) in s.pumps.iter_mut().zip(&chosen.design.units) {
+            p.units = Some(*n);
+        }
+        if let Some(sol) = s.solar.as_mut() {
+            sol.array_peak_w = Some(chosen.design.array_w);
+        }
+        let fc = check_scheme(&path.display().to_string(), &s, &rules);
+        assert!(fc.simulated, "{}: {:?}", path.display(), fc.note);
+        let failing: Vec<&str> = fc
+            .outcomes
+            .iter()
+            .filter(|o| o.status == Status::Fail)
+            .map(|o| o.id.as_str())
+            .collect();
+        assert!(
+            failing.is_empty(),
+            "{}: check fails {failing:?} on the design size chose ({})",
+            path.display(),
+            chosen.design_text
+        );
+        assert!(verdict.acceptable && verdict.failing_rules.is_empty());
+        let warned: Vec<String> = fc
+            .outcomes
+            .iter()
+            .filter(|o| o.status == Status::Warn)
+            .map(|o| o.id.clone())
+            .collect();
+        assert_eq!(verdict.warning_rules, warned, "{}", path.display());
+        if let Some((_, floor)) = tapplan::sizing::storage_floor_m3(&s, &rules) {
+            let top = *tank_candidates(&s).last().unwrap();
+            assert!(
+                chosen.design.tank_m3 >= floor - 1e-9 || chosen.design.tank_m3 == top,
+                "{}: {} m³ is below the storage floor {floor} m³",
+                path.display(),
+                chosen.design.tank_m3
+            );
+        }
+    }
 }

@@ -331,10 +331,28 @@ pub fn plan_summary(p: &Plan, cur: &str) -> String {
             }
         ));
     }
+    if let Some(v) = &p.verdict {
+        out.push_str(&verdict_line(v));
+        out.push('\n');
+    }
     if let Some(md) = &p.mean_days {
         out.push_str(&format!("  {}\n", md.explanation));
     }
     out
+}
+
+/// The rules' verdict on a design in one line, as `check` would give it.
+pub fn verdict_line(v: &crate::sizing::Verdict) -> String {
+    let mut t = if v.acceptable {
+        "  rules: no rule of severity fail is failed (the verdict `tapplan check` gives)"
+            .to_string()
+    } else {
+        format!("  rules: FAILS {}", v.failing_rules.join(", "))
+    };
+    if !v.warning_rules.is_empty() {
+        t.push_str(&format!("; warns: {}", v.warning_rules.join(", ")));
+    }
+    t
 }
 
 /// Cheapest design per pump count.

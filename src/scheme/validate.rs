@@ -299,6 +299,17 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
         500.0,
         "L per person per day",
     ) / 1000.0;
+    if per_capita > 0.0 && per_capita * 1000.0 < 1.0 {
+        c.err(
+            "demand.per_capita_l_per_day",
+            format!(
+                "{} L per person per day is below 1 L, far less than anyone drinks; the key is in litres — was it given in m³ ({} m³ is {} L)?",
+                fmt_num(per_capita * 1000.0),
+                fmt_num(per_capita * 1000.0),
+                fmt_num(per_capita * 1.0e6)
+            ),
+        );
+    }
     if (1.0..15.0).contains(&(per_capita * 1000.0)) {
         c.warn(
             "demand.per_capita_l_per_day",
@@ -1049,12 +1060,22 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
     let t = &raw.tank;
     let f = "tank";
     let capacity_m3 = t.capacity_m3.map(|v| {
-        c.positive(
+        let v = c.positive(
             &format!("{f}.capacity_m3"),
             v,
             20_000.0,
             "m³; a tank of zero cannot store water",
-        )
+        );
+        if v > 0.0 && v < 0.1 {
+            c.err(
+                &format!("{f}.capacity_m3"),
+                format!(
+                    "{} m³ is under 100 L, a bucket rather than a tank; the key is in m³ — was it given in some other unit (a 10,000 L tank is 10 m³)?",
+                    fmt_num(v)
+                ),
+            );
+        }
+        v
     });
     let mut search = None;
     if let Some(r) = &t.capacity_range_m3 {
@@ -1545,11 +1566,41 @@ fn check_curve(c: &mut Ck, f: &str, pts: &[RawCurvePoint], rho_g: f64) -> Vec<Cu
                 1.0
             }
         };
+        // hydraulic power ρ g Q H cannot exceed the input power (efficiency above 100 %)
+        let hydraulic_w = rho_g * q * h;
+        if p.power_w.is_some() && power > 0.0 && hydraulic_w > power * (1.0 + 1e-9) {
+            c.err(
+                &format!("{pf}.power_w"),
+                format!(
+                    "{} W is less than the {:.0} W of hydraulic power this point delivers (ρ·g·Q·H), an efficiency of {:.0} %; the key is input power in watts — was it given in kW ({} kW is {} W)?",
+                    fmt_num(power),
+                    hydraulic_w,
+                    hydraulic_w / power * 100.0,
+                    fmt_num(power),
+                    fmt_num(power * 1000.0)
+                ),
+            );
+        }
         out.push(CurvePointSi {
             flow_m3_per_s: q,
             head_m: h,
             power_w: power,
         });
+    }
+    // best wire-to-water efficiency over the curve: below 5 % a unit is likely wrong
+    let best = out
+        .iter()
+        .filter(|p| p.power_w > 0.0)
+        .map(|p| rho_g * p.flow_m3_per_s * p.head_m / p.power_w)
+        .fold(0.0f64, f64::max);
+    if pts.iter().all(|p| p.power_w.is_some()) && out.len() >= 3 && best > 0.0 && best < 0.05 {
+        c.warn(
+            &cf,
+            format!(
+                "the best wire-to-water efficiency on this curve is {:.1} % (ρ·g·Q·H over power_w); pumps reach 20–80 % — check the units of flow_m3_per_h (m³/h, not L/s or L/h) and power_w (W)",
+                best * 100.0
+            ),
+        );
     }
     for j in 1..out.len() {
         if out[j].flow_m3_per_s <= out[j - 1].flow_m3_per_s {

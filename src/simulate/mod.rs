@@ -901,6 +901,10 @@ pub fn year_meets_target(s: &Scheme, y: &YearResult) -> bool {
             .is_none_or(|m| y.annual.shortfall_hours as f64 <= m + 1e-9)
         && t.min_demand_met_fraction
             .is_none_or(|m| y.demand_met_fraction >= m - 1e-12)
+        // the water each person gets, when anyone lives there (the supply-per-person rule)
+        && (y.population <= 0.0
+            || y.delivered_m3_per_person_day
+                >= t.min_supply_m3_per_person_day * (1.0 - 1e-9))
 }
 
 /// Weather years that may miss the target while the ensemble still meets it: all but the

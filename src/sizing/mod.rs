@@ -39,6 +39,7 @@ pub mod cost;
 use serde::Serialize;
 
 use crate::error::Error;
+use crate::rules::RuleSet;
 use crate::scheme::{DriveKind, JudgedOn, Scheme, TankSearch, WeatherMode};
 use crate::simulate::{
     self, Abort, Design, Ensemble, Model, RunReport, Scenario, YearResult, daily_demand,
@@ -173,6 +174,34 @@ pub struct SearchStats {
     pub extra_passes: usize,
 }
 
+/// The rules' judgement of a design: the ids of the rules it fails (severity fail) and of
+/// those it only warns about. The same judgement `tapplan check` prints.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct Verdict {
+    pub acceptable: bool,
+    pub failing_rules: Vec<String>,
+    pub warning_rules: Vec<String>,
+}
+
+impl Verdict {
+    pub fn of(outcomes: &[crate::rules::RuleOutcome]) -> Verdict {
+        use crate::rules::Status;
+        let ids = |st: Status| {
+            outcomes
+                .iter()
+                .filter(|o| o.status == st)
+                .map(|o| o.id.clone())
+                .collect::<Vec<_>>()
+        };
+        let failing_rules = ids(Status::Fail);
+        Verdict {
+            acceptable: failing_rules.is_empty(),
+            failing_rules,
+            warning_rules: ids(Status::Warn),
+        }
+    }
+}
+
 /// The result of sizing.
 #[derive(Debug, Clone, Serialize)]
 pub struct Plan {
@@ -181,6 +210,8 @@ pub struct Plan {
     pub judged_on: JudgedOn,
     pub weather_years: usize,
     pub chosen: Option<Evaluated>,
+    /// The rules' verdict on the chosen design (None when nothing meets the target).
+    pub verdict: Option<Verdict>,
     /// Full results of the chosen design (or of the best reachable one when none meets).
     pub report: RunReport,
     pub alternatives: Vec<Evaluated>,
@@ -206,6 +237,10 @@ pub fn target_text(s: &Scheme) -> String {
             m * 100.0
         ));
     }
+    parts.push(format!(
+        "at least {:.0} L per person per day delivered",
+        s.targets.min_supply_m3_per_person_day * 1000.0
+    ));
     format!(
         "{} in {} (the horizon year)",
         parts.join(" and "),
@@ -826,10 +861,41 @@ pub fn size(s: &Scheme) -> Result<Plan, Error> {
 
 /// Sizes with a prepared model.
 pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
+    size_with_rules(m, &RuleSet::defaults())
+}
+
+/// The least tank the storage-days rule in force allows, m³ (None when the rule is off or
+/// has no fixed limit): its days of the horizon year's average supplied demand over the
+/// usable share.
+pub fn storage_floor_m3(s: &Scheme, rules: &RuleSet) -> Option<(f64, f64)> {
+    let r = rules.get("storage-days").filter(|r| r.enabled)?;
+    let days = r.limit_si?;
+    let dd = simulate::daily_demand(s, s.info.horizon_years);
+    let floor = days * dd.supplied_m3_per_day / s.tank.usable_fraction.max(1e-9);
+    (floor > 0.0 && floor.is_finite()).then_some((days, floor))
+}
+
+/// Sizes with a prepared model under the rules in force: the storage-days rule is a lower
+/// bound on the tank, and the chosen design is judged by every rule (the verdict `check`
+/// gives).
+pub fn size_with_rules(m: &Model, rules: &RuleSet) -> Result<Plan, Error> {
     let s = &m.scheme;
-    let tanks = tank_candidates(s);
-    if tanks.is_empty() {
+    let all_tanks = tank_candidates(s);
+    if all_tanks.is_empty() {
         return Err(Error::Input("tank: no tank sizes to search".into()));
+    }
+    let floor = storage_floor_m3(s, rules);
+    let mut tanks: Vec<f64> = match floor {
+        Some((_, f)) => all_tanks
+            .iter()
+            .copied()
+            .filter(|t| *t >= f - 1e-9)
+            .collect(),
+        None => all_tanks.clone(),
+    };
+    if tanks.is_empty() {
+        // every size in the range stores less than the rule asks: keep the largest
+        tanks.push(*all_tanks.last().expect("checked above"));
     }
     let arrays_all = array_candidates(s);
     let sets = pump_sets(s)?;
@@ -1017,12 +1083,31 @@ pub fn size_with_model(m: &Model) -> Result<Plan, Error> {
         year_simulations: m.simulations_run(),
         extra_passes: m.extra_passes_run(),
     };
+    if let Some((days, _)) = floor {
+        let sets_it = chosen
+            .as_ref()
+            .is_some_and(|c| c.design.tank_m3 <= tanks[0] + 1e-9 && tanks[0] > all_tanks[0]);
+        notes.push(format!(
+            "the storage-days rule in force (at least {} days of the horizon year's average demand) makes {} m³ the smallest tank tried{}",
+            simulate::fmt_g(days),
+            simulate::fmt_g(tanks[0]),
+            if sets_it {
+                "; it, not the shortfall, sets the chosen tank"
+            } else {
+                ""
+            }
+        ));
+    }
+    let verdict = chosen
+        .as_ref()
+        .map(|_| Verdict::of(&crate::rules::evaluate(s, &report, rules)));
     Ok(Plan {
         scheme: s.info.name.clone(),
         target_text: target_text(s),
         judged_on: s.targets.judged_on,
         weather_years: n,
         chosen,
+        verdict,
         report,
         alternatives,
         front,
@@ -1075,12 +1160,18 @@ pub fn evaluate_fixed(m: &Model, d: &Design) -> Result<Plan, Error> {
     let chosen = ev.meets_target.then(|| ev.clone());
     let unreachable = (!ev.meets_target).then(|| diagnose(m, d, &report, "with the given design"));
     let sensitivity = sensitivity(m, d, median_w)?;
+    let verdict = Some(Verdict::of(&crate::rules::evaluate(
+        s,
+        &report,
+        &RuleSet::defaults(),
+    )));
     Ok(Plan {
         scheme: s.info.name.clone(),
         target_text: target_text(s),
         judged_on: s.targets.judged_on,
         weather_years: m.weather_years(),
         chosen,
+        verdict,
         report,
         alternatives: vec![ev],
         front: Vec::new(),

@@ -514,6 +514,19 @@ fn page_one(inp: &PlanInputs, b: &mut Vec<Block>) {
         kf.push(("Drive".into(), "no fuel or power bought".into()));
     }
     kf.push(("Target in the horizon year".into(), verdict));
+    if let Some(v) = &p.verdict {
+        kf.push((
+            "Rules (the verdict of tapplan check)".into(),
+            if v.acceptable {
+                "no failing rule".to_string()
+            } else {
+                format!("FAILS {}", v.failing_rules.join(", "))
+            },
+        ));
+        if !v.warning_rules.is_empty() {
+            kf.push(("Rules that warn".into(), v.warning_rules.join(", ")));
+        }
+    }
     kf.push((
         format!(
             "First year {}: shortfall hours, demand met",
