@@ -97,6 +97,7 @@ fn run(cli: Cli) -> anyhow::Result<Outcome> {
         Command::Size(a) => cmd_size(a),
         Command::Plan(a) => cmd_plan(a),
         Command::Verify(a) => cmd_verify(a),
+        Command::Pumptest(a) => cmd_pumptest(a),
     }
 }
 
@@ -717,4 +718,96 @@ fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
     } else {
         Outcome::Failed
     })
+}
+
+fn cmd_pumptest(a: cli::PumptestArgs) -> anyhow::Result<Outcome> {
+    use tapplan::output::pumptest as render;
+    for out in [&a.json, &a.pdf, &a.block].into_iter().flatten() {
+        if !output_folder_ok(out) {
+            return Ok(Outcome::BadInput);
+        }
+    }
+    let stdout_outputs = [&a.json, &a.pdf, &a.block]
+        .into_iter()
+        .flatten()
+        .filter(|p| p.as_os_str() == "-")
+        .count();
+    if stdout_outputs > 1 {
+        eprintln!(
+            "error: only one of --json, --pdf and --block can go to standard output (`-`); write the others to files"
+        );
+        return Ok(Outcome::BadInput);
+    }
+    let test = match tapplan::pumptest::load_file(&a.file) {
+        Ok(t) => t,
+        Err(e) => {
+            eprint!("{e}");
+            return Ok(Outcome::BadInput);
+        }
+    };
+    let report = match tapplan::pumptest::analyse(&test) {
+        Ok(r) => r,
+        Err(e) => {
+            eprint!("{e}");
+            return Ok(Outcome::BadInput);
+        }
+    };
+    let name = a
+        .file
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "pumping test".into());
+    let block = tapplan::pumptest::scheme_block(&report, &name);
+    let mut inputs: Vec<std::path::PathBuf> = vec![a.file.clone()];
+    let base = a.file.parent().map(Path::to_path_buf).unwrap_or_default();
+    for t in &test.tests {
+        inputs.push(base.join(&t.file));
+    }
+    let input_refs: Vec<&Path> = inputs.iter().map(|p| p.as_path()).collect();
+    if stdout_outputs == 0 {
+        out!("{}", render::text(&report, &block));
+    } else {
+        for n in &report.notes {
+            eprintln!("note: {n}");
+        }
+    }
+    if let Some(p) = &a.json {
+        #[derive(serde::Serialize)]
+        struct Out<'a> {
+            report: &'a tapplan::pumptest::Report,
+            scheme_block: &'a str,
+        }
+        let mut text = serde_json::to_string_pretty(&Out {
+            report: &report,
+            scheme_block: &block,
+        })?;
+        text.push('\n');
+        if let Err(e) = emit(p, text.as_bytes(), &input_refs) {
+            eprintln!("error: {e}");
+            return Ok(Outcome::BadInput);
+        }
+    }
+    if let Some(p) = &a.block
+        && let Err(e) = emit(p, block.as_bytes(), &input_refs)
+    {
+        eprintln!("error: {e}");
+        return Ok(Outcome::BadInput);
+    }
+    if let Some(p) = &a.pdf {
+        let bytes = match render::pdf(&report, &block, &test.files) {
+            Ok(b) => b,
+            Err(e) => {
+                eprintln!("error: {e}");
+                return Ok(Outcome::BadInput);
+            }
+        };
+        if let Err(e) = emit(p, &bytes, &input_refs) {
+            eprintln!("error: {e}");
+            return Ok(Outcome::BadInput);
+        }
+        if p.as_os_str() != "-" && stdout_outputs == 0 {
+            outln!("wrote '{}' ({} bytes)", p.display(), bytes.len());
+        }
+    }
+    Ok(Outcome::Ok)
 }
