@@ -659,6 +659,41 @@ fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
             return Ok(Outcome::BadInput);
         }
     }
+    let names = match tapplan::output::pdf::list_attachments(&pdf) {
+        Ok(n) => n,
+        Err(e) => {
+            eprintln!("error: '{label}' cannot be read as a plan PDF: {e}");
+            return Ok(Outcome::BadInput);
+        }
+    };
+    let prefix = tapplan::output::pumptest::PLAN_ATTACHMENT_PREFIX;
+    for n in names.iter().filter(|n| n.starts_with(prefix)) {
+        let rel = Path::new(&n[prefix.len()..]);
+        let safe = rel
+            .components()
+            .all(|c| matches!(c, std::path::Component::Normal(_)));
+        if !safe {
+            eprintln!(
+                "error: the plan carries the pumping-test file '{}' from outside the scheme's folder; put the test files beside the scheme file (or below it) and plan again to make the PDF verifiable",
+                rel.display()
+            );
+            return Ok(Outcome::BadInput);
+        }
+        let Some(bytes) = tryo!(get(n)) else {
+            continue;
+        };
+        let target = dir.0.join(rel);
+        let written = target
+            .parent()
+            .map_or(Ok(()), std::fs::create_dir_all)
+            .and_then(|_| std::fs::write(&target, &bytes));
+        if let Err(e) = written {
+            eprintln!(
+                "error: cannot write the embedded pumping-test file to a temporary folder: {e}"
+            );
+            return Ok(Outcome::BadInput);
+        }
+    }
     let scheme_label = format!("{label} (embedded {})", stored.scheme_file_name);
     let loaded = match tapplan::scheme::load_bytes(&scheme_bytes, &scheme_label, &dir.0) {
         Ok(l) => l,

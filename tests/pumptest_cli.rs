@@ -437,3 +437,81 @@ fn yaml_problems_name_the_line() {
     let err = text(&tapplan(&["pumptest", p.to_str().unwrap()]).stderr);
     assert!(err.contains("cannot read `missing.csv`"), "{err}");
 }
+
+#[test]
+fn plan_shows_the_fit_carries_the_records_and_verifies() {
+    let dir = tempfile::tempdir().unwrap();
+    let pdf = dir.path().join("kessa.pdf");
+    let out = tapplan(&[
+        "plan",
+        "samples/kessa-ridge-solar.yaml",
+        "-o",
+        pdf.to_str().unwrap(),
+    ]);
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    let bytes = std::fs::read(&pdf).unwrap();
+    let names = tapplan::output::pdf::list_attachments(&bytes).unwrap();
+    for n in [
+        "pumptest/pumptests/kessa-bh1.yaml",
+        "pumptest/pumptests/kessa-bh1-steps.csv",
+        "pumptest/pumptests/kessa-bh1-constant.csv",
+    ] {
+        assert!(names.iter().any(|x| x == n), "{n} not in {names:?}");
+    }
+    // The source page names the test and compares its figures with the scheme's.
+    if let Ok(o) = Command::new("pdftotext").arg(&pdf).arg("-").output() {
+        let t = text(&o.stdout);
+        assert!(
+            t.contains("the scheme file's figures against the pumping test"),
+            "no comparison table"
+        );
+        assert!(t.contains("Pumping test of BH-Kessa-1"));
+        assert!(!t.contains("DIFFER by more than 5 %"));
+    }
+    // verify re-runs from the embedded scheme and test records alone.
+    let v = tapplan(&["verify", pdf.to_str().unwrap()]);
+    assert!(v.status.success(), "{}{}", text(&v.stdout), text(&v.stderr));
+    assert!(text(&v.stdout).contains("bytes match"));
+}
+
+#[test]
+fn a_scheme_naming_a_missing_test_file_gets_a_warning_and_a_visible_plan_note() {
+    let dir = tempfile::tempdir().unwrap();
+    let scheme = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/kessa-ridge-solar.yaml"),
+    )
+    .unwrap();
+    let p = dir.path().join("kessa.yaml");
+    std::fs::write(&p, scheme).unwrap();
+    let out = tapplan(&["check", p.to_str().unwrap()]);
+    let all = format!("{}{}", text(&out.stdout), text(&out.stderr));
+    assert!(
+        all.contains("pumping-test file") && all.contains("not found"),
+        "{all}"
+    );
+    assert_ne!(out.status.code(), Some(2), "{all}");
+}
+
+#[test]
+fn several_tests_can_share_one_file_with_a_test_column() {
+    let dir = tempfile::tempdir().unwrap();
+    let (steps, constant) = synthetic("m3_per_h");
+    // One file: a `test` column in front of each record's columns.
+    let mut one = String::from("test,elapsed_min,rate_m3_per_h,drawdown_m,distance_m\n");
+    for l in steps.lines().skip(1) {
+        one.push_str(&format!("steps,{l},\n"));
+    }
+    for l in constant.lines().skip(1) {
+        one.push_str(&format!("constant,{l}\n"));
+    }
+    std::fs::write(dir.path().join("all.csv"), one).unwrap();
+    let yaml = YAML
+        .replace("file: steps.csv", "file: all.csv")
+        .replace("file: constant.csv", "file: all.csv");
+    let p = dir.path().join("one.yaml");
+    std::fs::write(&p, yaml).unwrap();
+    let j1 = json_of(&tapplan(&["pumptest", p.to_str().unwrap(), "--json", "-"]));
+    let p2 = write_case(dir.path(), YAML, &steps, &constant);
+    let j2 = json_of(&tapplan(&["pumptest", p2.to_str().unwrap(), "--json", "-"]));
+    assert_eq!(j1["report"]["figures"], j2["report"]["figures"]);
+}

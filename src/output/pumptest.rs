@@ -326,13 +326,14 @@ fn series(name: String, points: Vec<(f64, f64)>, style: LineStyle, grey: f32, w:
     }
 }
 
-/// Blocks of the pumping-test pages: tables and the plots. Used alone (the page set) and on the
-/// plan's source page.
-pub fn blocks(r: &Report, scheme_block: &str) -> Vec<Block> {
+/// Blocks of the pumping-test pages: tables and the plots. Used alone (the page set, `level`
+/// 1, with the scheme block) and on the plan's source page (`level` 2, without it).
+pub fn blocks(r: &Report, scheme_block: Option<&str>, level: u8) -> Vec<Block> {
     let mut out = Vec::new();
     let b = &r.borehole;
+    let sub = level + 1;
     out.push(Block::Heading {
-        level: 1,
+        level,
         text: format!("Pumping test of {}", b.name),
     });
     out.push(Block::Paragraph(format!(
@@ -359,7 +360,7 @@ pub fn blocks(r: &Report, scheme_block: &str) -> Vec<Block> {
     )));
     if let Some(cr) = &r.constant_rate {
         out.push(Block::Heading {
-            level: 2,
+            level: sub,
             text: format!(
                 "Constant-rate test: {} m³/h for {} h",
                 m3h(cr.rate_m3_per_s),
@@ -517,7 +518,7 @@ pub fn blocks(r: &Report, scheme_block: &str) -> Vec<Block> {
     if let Some(st) = &r.step {
         let hb = &st.hantush_bierschenk;
         out.push(Block::Heading {
-            level: 2,
+            level: sub,
             text: format!(
                 "Step-drawdown test: Hantush–Bierschenk at Δt = {} min",
                 minutes(hb.dt_s)
@@ -596,19 +597,21 @@ pub fn blocks(r: &Report, scheme_block: &str) -> Vec<Block> {
         }));
     }
     out.push(Block::Heading {
-        level: 2,
+        level: sub,
         text: "Assumptions and notes".into(),
     });
     let mut items: Vec<String> = r.assumptions.clone();
     items.extend(r.notes.iter().map(|n| format!("note: {n}")));
     out.push(Block::BulletList(items));
-    out.push(Block::Heading {
-        level: 2,
-        text: "Borehole block for the scheme file".into(),
-    });
-    out.push(Block::Preformatted(
-        scheme_block.lines().map(str::to_string).collect(),
-    ));
+    if let Some(block) = scheme_block {
+        out.push(Block::Heading {
+            level: sub,
+            text: "Borehole block for the scheme file".into(),
+        });
+        out.push(Block::Preformatted(
+            block.lines().map(str::to_string).collect(),
+        ));
+    }
     out
 }
 
@@ -621,7 +624,7 @@ pub fn pdf(
     let doc = Document {
         title: format!("Pumping test — {}", r.borehole.name),
         footer_label: r.borehole.name.clone(),
-        blocks: blocks(r, scheme_block),
+        blocks: blocks(r, Some(scheme_block), 1),
         attachments: files
             .iter()
             .map(|(name, bytes)| Attachment {
@@ -655,4 +658,155 @@ pub fn attachment_name(name: &str) -> String {
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_else(|| name.to_string());
     format!("pumptest-{base}")
+}
+
+/// What the plan adds for boreholes whose scheme entry names a pumping-test file.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct PlanPages {
+    /// Blocks for the plan's source section.
+    pub blocks: Vec<Block>,
+    /// The test files, attached as `pumptest/` + their path relative to the scheme's folder.
+    pub attachments: Vec<Attachment>,
+}
+
+/// Prefix of the attachment names of pumping-test files in a plan.
+pub const PLAN_ATTACHMENT_PREFIX: &str = "pumptest/";
+
+fn relative_name(path: &std::path::Path, base: &std::path::Path) -> String {
+    path.strip_prefix(base)
+        .unwrap_or(path)
+        .to_string_lossy()
+        .replace('\\', "/")
+}
+
+/// Reads and analyses the pumping-test file of every borehole that names one, for the plan.
+pub fn plan_pages(loaded: &crate::scheme::Loaded) -> Result<PlanPages, crate::error::Error> {
+    use crate::error::Error;
+    let mut pages = PlanPages::default();
+    let base = &loaded.source.base_dir;
+    for bh in &loaded.scheme.boreholes {
+        let Some(path) = &bh.pumping_test_file else {
+            continue;
+        };
+        let yaml_name = relative_name(path, base);
+        if !path.is_file() {
+            pages.blocks.push(Block::Paragraph(format!(
+                "The scheme names the pumping-test file {yaml_name} for borehole {}, but it is not beside the scheme file; the scheme's figures are used as written and the test cannot be shown.",
+                bh.name
+            )));
+            continue;
+        }
+        let test = crate::pumptest::load_file(path).map_err(|e| {
+            Error::Input(format!(
+                "the pumping-test file of borehole {} cannot be used:\n{e}",
+                bh.name
+            ))
+        })?;
+        let mut report = crate::pumptest::analyse(&test).map_err(|e| {
+            Error::Input(format!(
+                "the pumping-test file of borehole {} cannot be analysed:\n{e}",
+                bh.name
+            ))
+        })?;
+        // The name relative to the scheme, so a re-run from elsewhere prints the same.
+        report.file = yaml_name.clone();
+        pages.blocks.push(Block::Paragraph(format!(
+            "The figures of borehole {} come from the pumping test in {yaml_name}; the records travel inside this PDF.",
+            bh.name
+        )));
+        pages.blocks.push(Block::Table(PdfTable {
+            caption: Some(format!(
+                "Borehole {}: the scheme file's figures against the pumping test",
+                bh.name
+            )),
+            header: vec![
+                "figure".into(),
+                "scheme file".into(),
+                "pumping test".into(),
+                "agreement".into(),
+            ],
+            rows: comparison_rows(bh, &report),
+            column_align: vec![Align::Left, Align::Right, Align::Right, Align::Left],
+            column_weights: Some(vec![1.6, 1.0, 1.0, 1.0]),
+        }));
+        pages.blocks.extend(blocks(&report, None, 2));
+        let dir = std::path::Path::new(&yaml_name)
+            .parent()
+            .map(|p| p.to_string_lossy().replace('\\', "/"))
+            .unwrap_or_default();
+        for (i, (name, bytes)) in test.files.iter().enumerate() {
+            let rel = if i == 0 {
+                yaml_name.clone()
+            } else if dir.is_empty() {
+                name.replace('\\', "/")
+            } else {
+                format!("{dir}/{}", name.replace('\\', "/"))
+            };
+            let att = Attachment {
+                name: format!("{PLAN_ATTACHMENT_PREFIX}{rel}"),
+                mime: if rel.ends_with(".csv") {
+                    "text/csv".into()
+                } else {
+                    "application/yaml".into()
+                },
+                bytes: bytes.clone(),
+                description: format!("Pumping-test record of borehole {}", bh.name),
+            };
+            if !pages.attachments.iter().any(|a| a.name == att.name) {
+                pages.attachments.push(att);
+            }
+        }
+    }
+    Ok(pages)
+}
+
+/// Scheme figure against the test's, with agreement within 5 %.
+fn comparison_rows(bh: &crate::scheme::Borehole, r: &Report) -> Vec<Vec<String>> {
+    let f = &r.figures;
+    let agree = |a: Option<f64>, b: Option<f64>| match (a, b) {
+        (Some(a), Some(b)) if a == 0.0 && b.abs() < 1e-12 => "agree".to_string(),
+        (Some(a), Some(b)) if a != 0.0 && ((b - a) / a).abs() <= 0.05 => {
+            "agree (within 5 %)".to_string()
+        }
+        (Some(_), Some(_)) => "DIFFER by more than 5 %".to_string(),
+        _ => "–".to_string(),
+    };
+    let show = |v: Option<f64>, sig: i32| v.map_or("–".to_string(), |v| plain(v, sig));
+    let wl = f.well_losses.as_ref();
+    let rows: Vec<(&str, Option<f64>, Option<f64>, i32)> = vec![
+        (
+            "transmissivity (m²/day)",
+            bh.transmissivity_m2_per_s.map(|t| t * 86_400.0),
+            f.t_m2_per_s.map(|t| t * 86_400.0),
+            3,
+        ),
+        ("storativity", bh.storativity, f.storativity, 2),
+        (
+            "linear well loss B (s/m²)",
+            Some(bh.well_loss_b_s_per_m2),
+            wl.map(|w| w.b_well_s_per_m2.max(0.0)),
+            3,
+        ),
+        (
+            "quadratic well loss C (s²/m⁵)",
+            Some(bh.well_loss_c_s2_per_m5),
+            wl.map(|w| w.c_s2_per_m5.max(0.0)),
+            3,
+        ),
+        (
+            "tested yield (m³/h)",
+            Some(bh.tested_yield_m3_per_s * 3600.0),
+            Some(f.tested_m3_per_s * 3600.0),
+            3,
+        ),
+        (
+            "safe-yield fraction",
+            Some(bh.safe_yield_fraction),
+            Some(f.safe_yield_fraction),
+            2,
+        ),
+    ];
+    rows.into_iter()
+        .map(|(k, a, b, sig)| vec![k.to_string(), show(a, sig), show(b, sig), agree(a, b)])
+        .collect()
 }
