@@ -877,3 +877,17 @@ fn parse_csv(bytes: &[u8], file: &str, test: &str, kind: TestKind, bh: &Borehole
         notes,
     ))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn cells_carry_their_columns() {
+        // Columns count characters from 1, after leading blanks, as an editor shows them.
+        let c = cells("12, 3.5,,x");
+        assert_eq!(c, vec![(1, "12"), (5, "3.5"), (9, ""), (10, "x")]);
+        let c = cells("é,b");
+        assert_eq!(c, vec![(1, "é"), (3, "b")]);
+    }
+}

@@ -266,7 +266,15 @@ pub fn analyse(p: &PumpTest) -> Result<Report, PumpTestError> {
             st.steps.iter().map(|s| s.0).fold(0.0, f64::max),
             "largest step rate (no constant-rate test)".to_string(),
         ),
-        (None, None) => unreachable!("load requires at least one test"),
+        (None, None) => {
+            return Err(fail(
+                &p.label,
+                None,
+                "tests",
+                "no step or constant-rate test could be read; list at least one under `tests:`"
+                    .into(),
+            ));
+        }
     };
     let available = bh.intake_depth_m - bh.submergence_margin_m - bh.static_depth_m;
     let days = p.settings.pumping_days;
