@@ -79,7 +79,7 @@ pub enum Command {
     Verify(VerifyArgs),
     /// Analyse a borehole's pumping-test records: transmissivity, well losses, safe yield
     #[command(
-        after_help = help_with_caution!("Exit status: 0 analysed, 2 a record or option is invalid.\n\nExample:\n  tapplan pumptest samples/pumptests/kessa-bh1.yaml\n  tapplan pumptest samples/pumptests/kessa-bh1.yaml --pdf kessa-test.pdf --block kessa-borehole.yaml")
+        after_help = help_with_caution!("Exit status: 0 analysed, 2 a record or option is invalid.\n\nExample:\n  tapplan pumptest samples/pumptests/kessa-bh1.yaml\n  tapplan pumptest samples/pumptests/kessa-bh1.yaml --pdf kessa-test.pdf --block kessa-borehole.yaml\n  tapplan pumptest samples/pumptests/kessa-bh1.yaml --for-scheme samples/kessa-ridge-solar.yaml")
     )]
     Pumptest(PumptestArgs),
 }
@@ -97,6 +97,10 @@ pub struct PumptestArgs {
     /// Write the scheme's borehole block to this file (`-` for standard output)
     #[arg(long, value_name = "FILE")]
     pub block: Option<PathBuf>,
+    /// Scheme file the borehole belongs to: compare its figures with the test's, and name
+    /// the test file in the block relative to it
+    #[arg(long, value_name = "SCHEME")]
+    pub for_scheme: Option<PathBuf>,
 }
 
 #[derive(Debug, Args)]

@@ -792,7 +792,36 @@ fn cmd_pumptest(a: cli::PumptestArgs) -> anyhow::Result<Outcome> {
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_else(|| "pumping test".into());
-    let block = tapplan::pumptest::scheme_block(&report, &name);
+    // With --for-scheme: the scheme's borehole of the same name, and the test file's path
+    // relative to the scheme.
+    let mut comparison: Option<Vec<Vec<String>>> = None;
+    let mut rel: Option<String> = None;
+    if let Some(sp) = &a.for_scheme {
+        let loaded = tryo!(load(sp));
+        let bname = &report.borehole.name;
+        let Some(bh) = loaded.scheme.boreholes.iter().find(|b| &b.name == bname) else {
+            let names: Vec<&str> = loaded
+                .scheme
+                .boreholes
+                .iter()
+                .map(|b| b.name.as_str())
+                .collect();
+            eprintln!(
+                "error: {}: no borehole is named `{bname}` (the name in {}); its boreholes: {}; give the same name in both files",
+                sp.display(),
+                a.file.display(),
+                if names.is_empty() {
+                    "none".to_string()
+                } else {
+                    names.join(", ")
+                }
+            );
+            return Ok(Outcome::BadInput);
+        };
+        comparison = Some(render::comparison_rows(bh, &report));
+        rel = tapplan::pumptest::relative_path(&loaded.source.base_dir, &a.file);
+    }
+    let block = tapplan::pumptest::scheme_block(&report, &name, rel.as_deref());
     let mut inputs: Vec<std::path::PathBuf> = vec![a.file.clone()];
     let base = a.file.parent().map(Path::to_path_buf).unwrap_or_default();
     for t in &test.tests {
@@ -800,6 +829,18 @@ fn cmd_pumptest(a: cli::PumptestArgs) -> anyhow::Result<Outcome> {
     }
     let input_refs: Vec<&Path> = inputs.iter().map(|p| p.as_path()).collect();
     if stdout_outputs == 0 {
+        if let (Some(rows), Some(sp)) = (&comparison, &a.for_scheme) {
+            let mut t = tapplan::output::table::new_table(&[
+                "figure",
+                "scheme file",
+                "pumping test",
+                "agreement",
+            ]);
+            for r in rows {
+                t.add_row(r.clone());
+            }
+            outln!("Figures of {} against the test:\n{t}\n", sp.display());
+        }
         out!("{}", render::text(&report, &block));
     } else {
         for n in &report.notes {
@@ -811,10 +852,14 @@ fn cmd_pumptest(a: cli::PumptestArgs) -> anyhow::Result<Outcome> {
         struct Out<'a> {
             report: &'a tapplan::pumptest::Report,
             scheme_block: &'a str,
+            /// With --for-scheme: rows of figure, scheme value, test value, agreement.
+            #[serde(skip_serializing_if = "Option::is_none")]
+            scheme_comparison: Option<&'a Vec<Vec<String>>>,
         }
         let mut text = serde_json::to_string_pretty(&Out {
             report: &report,
             scheme_block: &block,
+            scheme_comparison: comparison.as_ref(),
         })?;
         text.push('\n');
         if let Err(e) = emit(p, text.as_bytes(), &input_refs) {

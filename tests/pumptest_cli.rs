@@ -515,3 +515,37 @@ fn several_tests_can_share_one_file_with_a_test_column() {
     let j2 = json_of(&tapplan(&["pumptest", p2.to_str().unwrap(), "--json", "-"]));
     assert_eq!(j1["report"]["figures"], j2["report"]["figures"]);
 }
+
+#[test]
+fn for_scheme_compares_and_names_the_test_file_relative_to_the_scheme() {
+    let out = tapplan(&[
+        "pumptest",
+        SAMPLE,
+        "--for-scheme",
+        "samples/kessa-ridge-solar.yaml",
+        "--json",
+        "-",
+    ]);
+    let j = json_of(&out);
+    let rows = j["scheme_comparison"].as_array().unwrap();
+    assert_eq!(rows.len(), 6);
+    for r in rows {
+        assert!(r[3].as_str().unwrap().starts_with("agree"), "{r}");
+    }
+    let block: serde_yaml::Value =
+        serde_yaml::from_str(j["scheme_block"].as_str().unwrap()).unwrap();
+    // The sample scheme names its test as `pumptests/kessa-bh1.yaml`.
+    assert_eq!(
+        block["sources"]["boreholes"][0]["pumping_test_file"].as_str(),
+        Some("pumptests/kessa-bh1.yaml")
+    );
+    // A scheme without a borehole of that name is refused with the names it has.
+    let out = tapplan(&[
+        "pumptest",
+        SAMPLE,
+        "--for-scheme",
+        "samples/tolomba-market-generator.yaml",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(text(&out.stderr).contains("its boreholes: Tolomba-BH-A"));
+}

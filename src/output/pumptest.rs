@@ -761,7 +761,7 @@ pub fn plan_pages(loaded: &crate::scheme::Loaded) -> Result<PlanPages, crate::er
 }
 
 /// Scheme figure against the test's, with agreement within 5 %.
-fn comparison_rows(bh: &crate::scheme::Borehole, r: &Report) -> Vec<Vec<String>> {
+pub fn comparison_rows(bh: &crate::scheme::Borehole, r: &Report) -> Vec<Vec<String>> {
     let f = &r.figures;
     let agree = |a: Option<f64>, b: Option<f64>| match (a, b) {
         (Some(a), Some(b)) if a == 0.0 && b.abs() < 1e-12 => "agree".to_string(),

@@ -666,8 +666,10 @@ pub fn plain(v: f64, sig: i32) -> String {
     }
 }
 
-/// The scheme file's borehole block filled in from the report, ready to paste.
-pub fn scheme_block(r: &Report, test_file_name: &str) -> String {
+/// The scheme file's borehole block filled in from the report, ready to paste. With
+/// `pumping_test_file` (the test file's path relative to the scheme's folder) the block names
+/// the test as its source, so the plan shows it.
+pub fn scheme_block(r: &Report, test_file_name: &str, pumping_test_file: Option<&str>) -> String {
     let f = &r.figures;
     let b = &r.borehole;
     let mut s = String::new();
@@ -731,13 +733,37 @@ pub fn scheme_block(r: &Report, test_file_name: &str) -> String {
         "      submergence_margin_m: {}\n",
         plain(b.submergence_margin_m, 3)
     ));
+    if let Some(p) = pumping_test_file {
+        s.push_str(&format!("      pumping_test_file: {}\n", yaml_str(p)));
+    }
     s
+}
+
+/// Path of `target` relative to the folder `from_dir`, with `/` separators; both are made
+/// absolute first (they must exist). None when they share no root (other drive).
+pub fn relative_path(from_dir: &std::path::Path, target: &std::path::Path) -> Option<String> {
+    use std::path::Component;
+    let from = std::fs::canonicalize(from_dir).ok()?;
+    let to = std::fs::canonicalize(target).ok()?;
+    let a: Vec<Component> = from.components().collect();
+    let b: Vec<Component> = to.components().collect();
+    if a.first() != b.first() {
+        return None;
+    }
+    let common = a.iter().zip(&b).take_while(|(x, y)| x == y).count();
+    let mut parts: Vec<String> = vec!["..".to_string(); a.len() - common];
+    parts.extend(
+        b[common..]
+            .iter()
+            .map(|c| c.as_os_str().to_string_lossy().into_owned()),
+    );
+    Some(parts.join("/"))
 }
 
 fn yaml_str(s: &str) -> String {
     let plain_ok = !s.is_empty()
         && s.chars()
-            .all(|c| c.is_alphanumeric() || matches!(c, ' ' | '-' | '_' | '.'))
+            .all(|c| c.is_alphanumeric() || matches!(c, ' ' | '-' | '_' | '.' | '/'))
         && !s.starts_with([' ', '-'])
         && !s.ends_with(' ');
     if plain_ok {
