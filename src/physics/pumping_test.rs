@@ -774,6 +774,14 @@ mod tests {
         assert!(kd > 392.0 * 0.9 && kd < 700.0, "KD {kd}");
         assert!(cj.u_valid, "u at first {}", cj.u_at_first);
         assert!(cj.u_at_first < LATE_TIME_U_MAX);
+        // The selection settles on the 29 readings from 1.4 min on (u = 0.039 there). An
+        // ordinary least-squares line through those 29 readings computed in Python outside
+        // this project: KD = 503.94 m²/d, S = 8.541e-5, u(1.4 min) = 0.0392.
+        assert_eq!(cj.points_used, 29);
+        assert_relative_eq!(cj.first_time_s, 1.4 * 60.0, max_relative = 1e-12);
+        assert_relative_eq!(kd, 503.94, max_relative = 1e-4);
+        assert_relative_eq!(cj.storativity, 8.541e-5, max_relative = 1e-3);
+        assert_relative_eq!(cj.u_at_first, 0.0392, max_relative = 1e-2);
     }
 
     #[test]
@@ -927,7 +935,8 @@ mod tests {
 
     #[test]
     fn efficiency_definition() {
-        // Kruseman & de Ridder (1994) §14.1: aquifer loss / total; 100 % without well loss.
+        // Kruseman & de Ridder (1994) §14.1 (from memory): efficiency = aquifer loss / total
+        // drawdown in the well; 100 % without well loss (analytic).
         assert_relative_eq!(well_efficiency(1000.0, 0.0, 0.0, 0.01), 1.0);
         // B_aq Q = 10, B_w Q = 2, C Q² = 8 → 10/20.
         assert_relative_eq!(
