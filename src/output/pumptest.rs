@@ -524,11 +524,12 @@ pub fn blocks(r: &Report, scheme_block: Option<&str>, level: u8) -> Vec<Block> {
                 minutes(hb.dt_s)
             ),
         });
+        out.push(Block::Paragraph(format!(
+            "Each step is read Δt after its start and corrected for the earlier steps by Cooper–Jacob superposition, with the {}.",
+            st.correction_t_source
+        )));
         out.push(Block::Table(PdfTable {
-            caption: Some(format!(
-                "Drawdown of each step at Δt, corrected for the earlier steps ({})",
-                st.correction_t_source
-            )),
+            caption: Some("Drawdown of each step at Δt, corrected for the earlier steps".into()),
             header: STEP_HEADER.iter().map(|s| s.to_string()).collect(),
             rows: step_rows(r),
             column_align: vec![Align::Right; 7],
