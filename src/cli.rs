@@ -77,6 +77,30 @@ pub enum Command {
         after_help = help_with_caution!("Exit codes: 0 figures and bytes match, 1 they differ, 2 the PDF has no embedded scheme or cannot be read.\n\nExample:\n  tapplan verify kessa-plan.pdf\n  tapplan verify kessa-plan.pdf --extract kessa.yaml")
     )]
     Verify(VerifyArgs),
+    /// Analyse a borehole's pumping-test records: transmissivity, well losses, safe yield
+    #[command(
+        after_help = help_with_caution!("Exit status: 0 analysed, 2 a record or option is invalid.\n\nExample:\n  tapplan pumptest samples/pumptests/kessa-bh1.yaml\n  tapplan pumptest samples/pumptests/kessa-bh1.yaml --pdf kessa-test.pdf --block kessa-borehole.yaml\n  tapplan pumptest samples/pumptests/kessa-bh1.yaml --for-scheme samples/kessa-ridge-solar.yaml")
+    )]
+    Pumptest(PumptestArgs),
+}
+
+#[derive(Debug, Args)]
+pub struct PumptestArgs {
+    /// Pumping-test file: YAML for the borehole naming one CSV record per test
+    pub file: PathBuf,
+    /// Write the results as JSON to this file (`-` for standard output)
+    #[arg(long, value_name = "FILE")]
+    pub json: Option<PathBuf>,
+    /// Write the pages with the plots as a PDF (`-` for standard output)
+    #[arg(long, value_name = "PDF")]
+    pub pdf: Option<PathBuf>,
+    /// Write the scheme's borehole block to this file (`-` for standard output)
+    #[arg(long, value_name = "FILE")]
+    pub block: Option<PathBuf>,
+    /// Scheme file the borehole belongs to: compare its figures with the test's, and name
+    /// the test file in the block relative to it
+    #[arg(long, value_name = "SCHEME")]
+    pub for_scheme: Option<PathBuf>,
 }
 
 #[derive(Debug, Args)]

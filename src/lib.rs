@@ -11,6 +11,7 @@
 pub mod error;
 pub mod output;
 pub mod physics;
+pub mod pumptest;
 pub mod rules;
 pub mod scheme;
 pub mod simulate;

@@ -97,6 +97,7 @@ fn run(cli: Cli) -> anyhow::Result<Outcome> {
         Command::Size(a) => cmd_size(a),
         Command::Plan(a) => cmd_plan(a),
         Command::Verify(a) => cmd_verify(a),
+        Command::Pumptest(a) => cmd_pumptest(a),
     }
 }
 
@@ -659,6 +660,41 @@ fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
             return Ok(Outcome::BadInput);
         }
     }
+    let names = match tapplan::output::pdf::list_attachments(&pdf) {
+        Ok(n) => n,
+        Err(e) => {
+            eprintln!("error: '{label}' cannot be read as a plan PDF: {e}");
+            return Ok(Outcome::BadInput);
+        }
+    };
+    let prefix = tapplan::output::pumptest::PLAN_ATTACHMENT_PREFIX;
+    for n in names.iter().filter(|n| n.starts_with(prefix)) {
+        let rel = Path::new(&n[prefix.len()..]);
+        let safe = rel
+            .components()
+            .all(|c| matches!(c, std::path::Component::Normal(_)));
+        if !safe {
+            eprintln!(
+                "error: the plan carries the pumping-test file '{}' from outside the scheme's folder; put the test files beside the scheme file (or below it) and plan again to make the PDF verifiable",
+                rel.display()
+            );
+            return Ok(Outcome::BadInput);
+        }
+        let Some(bytes) = tryo!(get(n)) else {
+            continue;
+        };
+        let target = dir.0.join(rel);
+        let written = target
+            .parent()
+            .map_or(Ok(()), std::fs::create_dir_all)
+            .and_then(|_| std::fs::write(&target, &bytes));
+        if let Err(e) = written {
+            eprintln!(
+                "error: cannot write the embedded pumping-test file to a temporary folder: {e}"
+            );
+            return Ok(Outcome::BadInput);
+        }
+    }
     let scheme_label = format!("{label} (embedded {})", stored.scheme_file_name);
     let loaded = match tapplan::scheme::load_bytes(&scheme_bytes, &scheme_label, &dir.0) {
         Ok(l) => l,
@@ -718,4 +754,141 @@ fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
     } else {
         Outcome::Failed
     })
+}
+
+fn cmd_pumptest(a: cli::PumptestArgs) -> anyhow::Result<Outcome> {
+    use tapplan::output::pumptest as render;
+    for out in [&a.json, &a.pdf, &a.block].into_iter().flatten() {
+        if !output_folder_ok(out) {
+            return Ok(Outcome::BadInput);
+        }
+    }
+    let stdout_outputs = [&a.json, &a.pdf, &a.block]
+        .into_iter()
+        .flatten()
+        .filter(|p| p.as_os_str() == "-")
+        .count();
+    if stdout_outputs > 1 {
+        eprintln!(
+            "error: only one of --json, --pdf and --block can go to standard output (`-`); write the others to files"
+        );
+        return Ok(Outcome::BadInput);
+    }
+    let test = match tapplan::pumptest::load_file(&a.file) {
+        Ok(t) => t,
+        Err(e) => {
+            eprint!("{e}");
+            return Ok(Outcome::BadInput);
+        }
+    };
+    let report = match tapplan::pumptest::analyse(&test) {
+        Ok(r) => r,
+        Err(e) => {
+            eprint!("{e}");
+            return Ok(Outcome::BadInput);
+        }
+    };
+    let name = a
+        .file
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "pumping test".into());
+    // With --for-scheme: the scheme's borehole of the same name, and the test file's path
+    // relative to the scheme.
+    let mut comparison: Option<Vec<Vec<String>>> = None;
+    let mut rel: Option<String> = None;
+    if let Some(sp) = &a.for_scheme {
+        let loaded = tryo!(load(sp));
+        let bname = &report.borehole.name;
+        let Some(bh) = loaded.scheme.boreholes.iter().find(|b| &b.name == bname) else {
+            let names: Vec<&str> = loaded
+                .scheme
+                .boreholes
+                .iter()
+                .map(|b| b.name.as_str())
+                .collect();
+            eprintln!(
+                "error: {}: no borehole is named `{bname}` (the name in {}); its boreholes: {}; give the same name in both files",
+                sp.display(),
+                a.file.display(),
+                if names.is_empty() {
+                    "none".to_string()
+                } else {
+                    names.join(", ")
+                }
+            );
+            return Ok(Outcome::BadInput);
+        };
+        comparison = Some(render::comparison_rows(bh, &report));
+        rel = tapplan::pumptest::relative_path(&loaded.source.base_dir, &a.file);
+    }
+    let block = tapplan::pumptest::scheme_block(&report, &name, rel.as_deref());
+    let mut inputs: Vec<std::path::PathBuf> = vec![a.file.clone()];
+    let base = a.file.parent().map(Path::to_path_buf).unwrap_or_default();
+    for t in &test.tests {
+        inputs.push(base.join(&t.file));
+    }
+    let input_refs: Vec<&Path> = inputs.iter().map(|p| p.as_path()).collect();
+    if stdout_outputs == 0 {
+        if let (Some(rows), Some(sp)) = (&comparison, &a.for_scheme) {
+            let mut t = tapplan::output::table::new_table(&[
+                "figure",
+                "scheme file",
+                "pumping test",
+                "agreement",
+            ]);
+            for r in rows {
+                t.add_row(r.clone());
+            }
+            outln!("Figures of {} against the test:\n{t}\n", sp.display());
+        }
+        out!("{}", render::text(&report, &block));
+    } else {
+        for n in &report.notes {
+            eprintln!("note: {n}");
+        }
+    }
+    if let Some(p) = &a.json {
+        #[derive(serde::Serialize)]
+        struct Out<'a> {
+            report: &'a tapplan::pumptest::Report,
+            scheme_block: &'a str,
+            /// With --for-scheme: rows of figure, scheme value, test value, agreement.
+            #[serde(skip_serializing_if = "Option::is_none")]
+            scheme_comparison: Option<&'a Vec<Vec<String>>>,
+        }
+        let mut text = serde_json::to_string_pretty(&Out {
+            report: &report,
+            scheme_block: &block,
+            scheme_comparison: comparison.as_ref(),
+        })?;
+        text.push('\n');
+        if let Err(e) = emit(p, text.as_bytes(), &input_refs) {
+            eprintln!("error: {e}");
+            return Ok(Outcome::BadInput);
+        }
+    }
+    if let Some(p) = &a.block
+        && let Err(e) = emit(p, block.as_bytes(), &input_refs)
+    {
+        eprintln!("error: {e}");
+        return Ok(Outcome::BadInput);
+    }
+    if let Some(p) = &a.pdf {
+        let bytes = match render::pdf(&report, &block, &test.files) {
+            Ok(b) => b,
+            Err(e) => {
+                eprintln!("error: {e}");
+                return Ok(Outcome::BadInput);
+            }
+        };
+        if let Err(e) = emit(p, &bytes, &input_refs) {
+            eprintln!("error: {e}");
+            return Ok(Outcome::BadInput);
+        }
+        if p.as_os_str() != "-" && stdout_outputs == 0 {
+            outln!("wrote '{}' ({} bytes)", p.display(), bytes.len());
+        }
+    }
+    Ok(Outcome::Ok)
 }

@@ -4,4 +4,5 @@
 pub mod csv;
 pub mod files;
 pub mod pdf;
+pub mod pumptest;
 pub mod table;

@@ -14,6 +14,7 @@
 //! | Cooper–Jacob | [`aquifer`] | Cooper & Jacob (1946), via Kruseman & de Ridder (1994) | u < 0.01 |
 //! | Thiem | [`aquifer`] | Thiem (1906), via Kruseman & de Ridder (1994) | steady state |
 //! | well loss BQ + CQ² | [`aquifer`] | Jacob (1947) | step-test coefficients |
+//! | pumping-test analysis: Cooper–Jacob late-time line, Theis least squares, Theis recovery, Hantush–Bierschenk with superposition, safe yield | [`pumping_test`] | Cooper & Jacob (1946); Theis (1935); Hantush (1964), Bierschenk (1963) via Kruseman & de Ridder (1994) | confined aquifer; u < 0.05 on the straight line |
 //! | sun geometry, H₀ | [`solar`] | Duffie & Beckman (2006), ch. 1 (Cooper 1969, Spencer 1971) | all latitudes (polar day/night clamped) |
 //! | hourly split of daily totals | [`solar`] | Collares-Pereira & Rabl (1979) global; Liu & Jordan (1960) diffuse | monthly-mean days; used for every day |
 //! | diffuse fraction | [`solar`] | Erbs, Klein & Duffie (1982) daily and hourly | 0 < K_T < 1 |
@@ -36,6 +37,7 @@ pub mod demand;
 pub mod drives;
 pub mod money;
 pub mod pipes;
+pub mod pumping_test;
 pub mod pumps;
 pub mod solar;
 pub mod water;

@@ -97,6 +97,9 @@ pub struct Borehole {
     pub diameter_m: f64,
     /// Water the intake must stay below (m) to avoid drawing air.
     pub submergence_margin_m: f64,
+    /// Pumping-test file the figures come from (resolved against the scheme's folder); the
+    /// plan shows its analysis and carries its records.
+    pub pumping_test_file: Option<std::path::PathBuf>,
 }
 
 impl Borehole {

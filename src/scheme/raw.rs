@@ -109,6 +109,7 @@ pub struct RawBorehole {
     pub pump_intake_depth_m: f64,
     pub diameter_mm: f64,
     pub submergence_margin_m: Option<f64>,
+    pub pumping_test_file: Option<String>,
 }
 
 #[derive(Debug, Clone, Deserialize)]

@@ -517,6 +517,13 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
             intake_depth_m: intake,
             diameter_m: dia,
             submergence_margin_m: margin,
+            pumping_test_file: b.pumping_test_file.as_ref().map(|p| {
+                let path = base_dir.join(p);
+                if !path.is_file() {
+                    c.warn(&format!("{f}.pumping_test_file"), format!("pumping-test file `{p}` not found beside the scheme file (paths are relative to the scheme file's folder); the borehole's figures are used as written and the plan cannot show the test"));
+                }
+                path
+            }),
         });
     }
     let mut streams = Vec::new();

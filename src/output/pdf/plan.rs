@@ -197,6 +197,9 @@ pub struct PlanInputs<'a> {
     /// Command-line design overrides (None: the plan is the result of the search).
     pub overrides: Option<OverridesRecord>,
     pub checks: &'a [CheckRow],
+    /// Pumping-test pages of the boreholes whose test file the scheme names (blocks for the
+    /// source section, and the test records to attach).
+    pub pumping_tests: &'a crate::output::pumptest::PlanPages,
 }
 
 /// SHA-256 of bytes, lower-case hex.
@@ -428,6 +431,7 @@ pub fn plan_document(inp: &PlanInputs) -> Document {
             description: "Key figures of the plan, for tapplan verify".into(),
         },
     ];
+    attachments.extend(inp.pumping_tests.attachments.iter().cloned());
     if let Some(w) = inp.weather_file {
         attachments.push(Attachment {
             name: weather_attachment_name(w.name),
@@ -1110,6 +1114,7 @@ fn source_section(inp: &PlanInputs, b: &mut Vec<Block>) {
             "Available energy is the drive's output summed over the hours it could run (the PV array's DC output at the controller, the generator's rating over its shifts, the mains connection over its hours); the pumps use less when the tank is full or the yield caps the flow.",
         ));
     }
+    b.extend(inp.pumping_tests.blocks.iter().cloned());
 }
 
 fn year_section(inp: &PlanInputs, b: &mut Vec<Block>) {
@@ -1747,6 +1752,7 @@ pub fn run_plan(
             source: o.source,
         })
         .collect();
+    let pumping_tests = crate::output::pumptest::plan_pages(loaded)?;
     let record = overrides.map(|o| OverridesRecord {
         tank_m3: o.tank_m3,
         pumps: o.pumps.clone(),
@@ -1763,6 +1769,7 @@ pub fn run_plan(
             .map(|(n, b)| WeatherFile { name: n, bytes: b }),
         overrides: record,
         checks: &checks,
+        pumping_tests: &pumping_tests,
     };
     let pdf = plan_pdf(&inp).map_err(|e| Error::Input(format!("could not make the PDF: {e}")))?;
     Ok(PlanRun {
