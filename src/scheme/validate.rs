@@ -1168,6 +1168,21 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
         }
     }
     for (i, p) in pumps.iter().enumerate() {
+        if let Some((head_m, lift_m)) = p.cannot_lift_m(&boreholes, &tank) {
+            c.warn(
+                &format!("pumps[{i}].curve[0].head_m"),
+                format!(
+                    "pump `{}` cannot lift water to the tank at any speed: its highest head at rated speed is {} m, the static lift from the water level in `{}` to the tank inlet is {:.1} m; choose a pump whose shut-off head is well above {:.0} m",
+                    p.name,
+                    fmt_num(head_m),
+                    p.source_name,
+                    lift_m,
+                    lift_m
+                ),
+            );
+        }
+    }
+    for (i, p) in pumps.iter().enumerate() {
         let PumpKind::Ram { elevation_m, .. } = p.kind else {
             continue;
         };
