@@ -97,3 +97,45 @@ fn size_names_the_pump_not_the_drive_when_it_cannot_reach_the_tank() {
         "{limit}"
     );
 }
+
+/// Arithmetic decline of 5 % of the base population a year reaches 0 people after
+/// 1 / 0.05 = 20 years (P = P₀(1 + r n), Twort et al., Water Supply, 6th ed., 2009, ch. 1 —
+/// from memory); the sample's base year is 2026, so from 2046 on.
+#[test]
+fn a_population_projected_to_nothing_is_warned_and_the_judgement_stated() {
+    let text = edit(
+        &edit(
+            &edit(
+                &sample("kessa-ridge-solar.yaml"),
+                "method: geometric",
+                "method: arithmetic",
+            ),
+            "rate_percent_per_year: 2.6",
+            "rate_percent_per_year: -5",
+        ),
+        "horizon_years: 15",
+        "horizon_years: 50",
+    );
+    let dir = tempfile::tempdir().unwrap();
+    let p = write(dir.path(), "decline.yaml", &text);
+    let (_, out, _) = stdout_of(&["run", p.to_str().unwrap()]);
+    let warning = out
+        .lines()
+        .find(|l| l.contains("warning:") && l.contains("fewer than one person"))
+        .unwrap_or_else(|| panic!("no warning about the empty village:\n{out}"));
+    assert!(
+        warning.contains("demand.growth.rate_percent_per_year"),
+        "{warning}"
+    );
+    assert!(warning.contains("from 2046 on (year 20 of"), "{warning}");
+    assert!(
+        warning.contains("judged on the other users' demand alone"),
+        "{warning}"
+    );
+    let summary = out.lines().last().unwrap();
+    assert!(summary.contains("leaves no people"), "{summary}");
+    // a growing village gets no such warning
+    let p = root().join("samples/kessa-ridge-solar.yaml");
+    let (_, out, _) = stdout_of(&["run", p.to_str().unwrap()]);
+    assert!(!out.contains("fewer than one person"), "{out}");
+}

@@ -293,6 +293,32 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
         10.0,
         "% per year (village growth rates are rarely outside 0–5 %)",
     ) / 100.0;
+    // a declining projection that empties the village inside the horizon
+    let emptied = (1..=horizon_years).find(|&n| {
+        let p = match growth_method {
+            GrowthMethod::Geometric => {
+                crate::physics::demand::population_geometric(population, growth_rate, f64::from(n))
+            }
+            GrowthMethod::Arithmetic => {
+                crate::physics::demand::population_arithmetic(population, growth_rate, f64::from(n))
+            }
+        };
+        p < 1.0
+    });
+    if let Some(n) = emptied {
+        c.warn(
+            "demand.growth.rate_percent_per_year",
+            format!(
+                "the {} projection at {} % a year leaves fewer than one person from {} on (year {n} of the {horizon_years}-year horizon); such a year has no domestic demand, so it is judged on the other users' demand alone and meets the target whenever that is met (with no other users it always does); check the rate, or shorten the horizon to the years people live there",
+                match growth_method {
+                    GrowthMethod::Geometric => "geometric",
+                    GrowthMethod::Arithmetic => "arithmetic",
+                },
+                fmt_num(growth_rate * 100.0),
+                base_year + n as i32,
+            ),
+        );
+    }
     let per_capita = c.positive(
         "demand.per_capita_l_per_day",
         d.per_capita_l_per_day,
