@@ -16,4 +16,5 @@ pub mod scheme;
 pub mod simulate;
 pub mod sizing;
 pub mod templates;
+pub mod text;
 pub mod weather;

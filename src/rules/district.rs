@@ -147,11 +147,28 @@ pub fn from_str(text: &str, label: &str) -> Result<RuleSet, RulesFileError> {
                 .into(),
         )]));
     }
+    // the structure first: a deeply nested or tagged file is refused before the serde parse
+    let lines = LineMap::build(text);
+    let structure = crate::scheme::load::structure_problems(text, &lines);
+    if !structure.is_empty() {
+        return Err(fail(structure));
+    }
     let value: serde_yaml::Value = serde_yaml::from_str(text).map_err(|e| {
         let loc = e.location().map(|l| (l.line(), l.column()));
-        fail(vec![problem("", loc, format!("not valid YAML: {e}"))])
+        fail(vec![crate::scheme::load::yaml_problem(
+            &e.to_string(),
+            loc.map(|l| l.0),
+            loc.map(|l| l.1),
+        )])
     })?;
-    let lines = LineMap::build(text);
+    if let Some((tag, path)) = crate::scheme::load::first_tagged(&value, String::new()) {
+        let loc = lines.locate(&path);
+        return Err(fail(vec![crate::scheme::load::tag_problem(
+            &tag,
+            loc.map(|l| l.0),
+            loc.map(|l| l.1),
+        )]));
+    }
     if !value.is_mapping() {
         return Err(fail(vec![problem(
             "",
@@ -445,6 +462,28 @@ fn apply(raw: RawRules, lines: &LineMap, problems: &mut Vec<Problem>, label: &st
 mod tests {
     use super::*;
     use approx::assert_relative_eq;
+
+    /// A rules file gets the scheme file's structure checks before the serde parse: deep
+    /// nesting is refused where it passes the limit (quickly), and tags are refused.
+    #[test]
+    fn deep_nesting_and_tags_are_refused_in_rules_files() {
+        let deep = format!("district: {}{}\n", "[".repeat(100_000), "]".repeat(100_000));
+        let t = std::time::Instant::now();
+        let e = from_str(&deep, "deep.yaml").unwrap_err().to_string();
+        assert!(
+            t.elapsed() < std::time::Duration::from_secs(5),
+            "{:?}",
+            t.elapsed()
+        );
+        assert!(
+            e.contains("deep.yaml:1:") && e.contains("nested more than 32"),
+            "{e}"
+        );
+        let e = from_str("district: !!binary SGVsbG8=\n", "tag.yaml")
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("tag.yaml:1:") && e.contains("`!!binary`"), "{e}");
+    }
 
     #[test]
     fn changes_and_additions_apply() {
