@@ -9,6 +9,7 @@
 //! Nothing downstream reaches back upstream: renderers never recompute physics.
 
 pub mod error;
+pub mod input;
 pub mod output;
 pub mod physics;
 pub mod rules;

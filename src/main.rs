@@ -74,6 +74,11 @@ fn emit(path: &Path, bytes: &[u8], inputs: &[&Path]) -> Result<(), WriteError> {
     }
 }
 
+/// A path as shown on the terminal: control characters escaped.
+fn shown(p: &Path) -> String {
+    tapplan::text::escape_controls(&p.display().to_string()).into_owned()
+}
+
 /// Writes to standard output. Once its reader has closed the pipe the rest is dropped: the
 /// command still finishes, and its exit status still tells its outcome.
 fn put(args: std::fmt::Arguments, newline: bool) -> std::io::Result<()> {
@@ -476,13 +481,14 @@ fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
         return Ok(Outcome::BadInput);
     }
     let loaded = tryo!(load(&a.file));
-    let bytes = match std::fs::read(&a.file) {
-        Ok(b) => b,
-        Err(e) => {
-            eprintln!("error: cannot read '{}': {e}", a.file.display());
-            return Ok(Outcome::BadInput);
-        }
-    };
+    let bytes =
+        match tapplan::input::read_limited(&a.file, tapplan::scheme::load::MAX_FILE_BYTES as u64) {
+            Ok(b) => b,
+            Err(e) => {
+                eprintln!("error: cannot read '{}': {e}", shown(&a.file));
+                return Ok(Outcome::BadInput);
+            }
+        };
     let given =
         !a.design.pumps.is_empty() || a.design.tank_m3.is_some() || a.design.array_kwp.is_some();
     let o = tryo!(overrides(&a.design));
@@ -561,9 +567,15 @@ impl Drop for TempFolder {
 
 fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
     use tapplan::output::pdf::{extract_attachment, plan};
-    let label = a.pdf.display().to_string();
-    let pdf = match std::fs::read(&a.pdf) {
+    let label = shown(&a.pdf);
+    let pdf = match tapplan::input::read_limited(&a.pdf, tapplan::output::pdf::MAX_PLAN_PDF_BYTES) {
         Ok(b) => b,
+        Err(tapplan::input::ReadError::TooLarge { limit }) => {
+            eprintln!(
+                "error: '{label}' is larger than {limit} bytes (64 MiB); a plan PDF written by `tapplan plan` is far smaller — is this the right file?"
+            );
+            return Ok(Outcome::BadInput);
+        }
         Err(e) => {
             eprintln!("error: cannot read '{label}': {e}");
             return Ok(Outcome::BadInput);

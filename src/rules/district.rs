@@ -114,19 +114,18 @@ pub fn load_file(path: &Path) -> Result<RuleSet, RulesFileError> {
             message: m,
         }],
     };
-    let meta = std::fs::metadata(path).map_err(|e| whole(format!("cannot read the file: {e}")))?;
-    if meta.is_dir() {
-        return Err(whole(
-            "this is a folder; give the path of a rules file (.yaml)".into(),
-        ));
-    }
-    if meta.len() > MAX_RULES_BYTES as u64 {
-        return Err(whole(format!(
-            "the file is {} bytes; a rules file may be at most {MAX_RULES_BYTES} bytes — is this the right file?",
-            meta.len()
-        )));
-    }
-    let bytes = std::fs::read(path).map_err(|e| whole(format!("cannot read the file: {e}")))?;
+    use crate::input::{ReadError, read_limited};
+    let bytes = read_limited(path, MAX_RULES_BYTES as u64).map_err(|e| {
+        whole(match e {
+            ReadError::NotAFile(kind) => {
+                format!("this is {kind}, not a regular file; give the path of a rules file (.yaml)")
+            }
+            ReadError::TooLarge { .. } => format!(
+                "the file is larger than {MAX_RULES_BYTES} bytes; a rules file may be at most {MAX_RULES_BYTES} bytes — is this the right file?"
+            ),
+            e => e.to_string(),
+        })
+    })?;
     let text = String::from_utf8(bytes)
         .map_err(|_| whole("the file is not UTF-8 text; save it as UTF-8".into()))?;
     from_str(&text, &label)

@@ -337,20 +337,18 @@ pub fn read_source(path: &Path) -> Result<Source, SchemeError> {
         file: label.clone(),
         problems: vec![whole_file_problem(m)],
     };
-    let meta = std::fs::metadata(path).map_err(|e| fail(format!("cannot read the file: {e}")))?;
-    if meta.is_dir() {
-        return Err(fail(
-            "this is a folder; give the path of a scheme file (.yaml)".into(),
-        ));
-    }
-    if meta.len() > MAX_FILE_BYTES as u64 {
-        return Err(fail(format!(
-            "the file is {} bytes; a scheme file may be at most {} bytes (1 MiB) — is this the right file?",
-            meta.len(),
-            MAX_FILE_BYTES
-        )));
-    }
-    let bytes = std::fs::read(path).map_err(|e| fail(format!("cannot read the file: {e}")))?;
+    use crate::input::{ReadError, read_limited};
+    let bytes = read_limited(path, MAX_FILE_BYTES as u64).map_err(|e| {
+        fail(match e {
+            ReadError::NotAFile(kind) => {
+                format!("this is {kind}, not a regular file; give the path of a scheme file (.yaml)")
+            }
+            ReadError::TooLarge { .. } => format!(
+                "the file is larger than {MAX_FILE_BYTES} bytes; a scheme file may be at most {MAX_FILE_BYTES} bytes (1 MiB) — is this the right file?"
+            ),
+            e => e.to_string(),
+        })
+    })?;
     let base_dir = path
         .parent()
         .map(|p| p.to_path_buf())

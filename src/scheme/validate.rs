@@ -1376,8 +1376,11 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
                 "file" => match &w.file {
                     Some(p) => {
                         let path = base_dir.join(p);
-                        if !path.is_file() {
-                            c.err(&format!("{f}.file"), format!("weather file `{}` not found (paths are relative to the scheme file's folder)", path.display()));
+                        match std::fs::metadata(&path) {
+                            Ok(m) if m.is_file() => {}
+                            Ok(m) => c.err(&format!("{f}.file"), format!("weather file `{}` is {}, not a regular file; give the path of an .epw or .csv file", crate::text::escape_controls(&path.display().to_string()), crate::input::kind_of(&m))),
+                            Err(e) if e.kind() == std::io::ErrorKind::NotFound => c.err(&format!("{f}.file"), format!("weather file `{}` not found (paths are relative to the scheme file's folder)", crate::text::escape_controls(&path.display().to_string()))),
+                            Err(e) => c.err(&format!("{f}.file"), format!("weather file `{}` cannot be read: {}", crate::text::escape_controls(&path.display().to_string()), crate::input::plain_io(&e))),
                         }
                         WeatherMode::File { path }
                     }
