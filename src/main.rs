@@ -67,9 +67,7 @@ fn main() -> ExitCode {
 /// reader has closed the pipe, the rest is dropped, as [`put`] does.
 fn emit(path: &Path, bytes: &[u8], inputs: &[&Path]) -> Result<(), WriteError> {
     match write_output(path, bytes, inputs) {
-        Err(WriteError::Io { source, .. }) if source.kind() == std::io::ErrorKind::BrokenPipe => {
-            Ok(())
-        }
+        Err(e) if e.io_kind() == Some(std::io::ErrorKind::BrokenPipe) => Ok(()),
         r => r,
     }
 }
@@ -89,6 +87,13 @@ fn put(args: std::fmt::Arguments, newline: bool) -> std::io::Result<()> {
         .and_then(|_| if newline { o.write_all(b"\n") } else { Ok(()) });
     match r {
         Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
+        Err(e) => Err(std::io::Error::new(
+            e.kind(),
+            format!(
+                "could not write to standard output: {}",
+                tapplan::input::plain_io(&e)
+            ),
+        )),
         r => r,
     }
 }
@@ -334,6 +339,17 @@ fn cmd_new(a: cli::NewArgs) -> anyhow::Result<Outcome> {
         );
         return Ok(Outcome::BadInput);
     };
+    if !output_folder_ok(&file) {
+        return Ok(Outcome::BadInput);
+    }
+    if file.is_dir() {
+        eprintln!(
+            "error: '{}' is a folder; give the path of the scheme file to create, e.g. '{}'",
+            shown(&file),
+            shown(&file.join("village.yaml"))
+        );
+        return Ok(Outcome::BadInput);
+    }
     if file.exists() && !a.force {
         eprintln!(
             "error: '{}' already exists; choose another name or add --force to overwrite it",
@@ -462,16 +478,35 @@ fn output_folder_ok(out: &Path) -> bool {
     if out.as_os_str() == "-" {
         return true;
     }
-    match out.parent() {
-        Some(p) if !p.as_os_str().is_empty() && !p.is_dir() => {
+    let Some(p) = out.parent().filter(|p| !p.as_os_str().is_empty()) else {
+        return true;
+    };
+    match std::fs::metadata(p) {
+        Ok(m) if m.is_dir() => true,
+        Ok(_) => {
             eprintln!(
-                "error: cannot write '{}': the folder '{}' does not exist; create it or choose another output path",
-                out.display(),
-                p.display()
+                "error: cannot write '{}': '{}' is not a folder; choose another output path",
+                shown(out),
+                shown(p)
             );
             false
         }
-        _ => true,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
+            eprintln!(
+                "error: cannot write '{}': the folder '{}' does not exist; create it or choose another output path",
+                shown(out),
+                shown(p)
+            );
+            false
+        }
+        Err(e) => {
+            eprintln!(
+                "error: cannot write '{}': {}",
+                shown(out),
+                tapplan::input::plain_io(&e)
+            );
+            false
+        }
     }
 }
 

@@ -372,6 +372,9 @@ mod tests {
         f.set_len(MAX_WEATHER_FILE_BYTES + 1).unwrap();
         let e = read_weather_file(&path).unwrap_err();
         assert!(matches!(e, WeatherError::FileTooLarge { .. }));
-        assert!(e.to_string().contains("50 MiB limit (52428800 bytes)"), "{e}");
+        assert!(
+            e.to_string().contains("50 MiB limit (52428800 bytes)"),
+            "{e}"
+        );
     }
 }
