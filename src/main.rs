@@ -244,16 +244,37 @@ fn model(path: &Path, s: &tapplan::scheme::Scheme) -> Result<tapplan::simulate::
     })
 }
 
-fn overrides(a: &cli::DesignArgs) -> Result<tapplan::simulate::DesignOverrides, Outcome> {
-    let mut pumps = Vec::new();
+/// The design options given, checked against each other and against the scheme: a pump type
+/// named twice, or an array size for a scheme without a solar-driven pump, is refused.
+fn overrides(
+    a: &cli::DesignArgs,
+    s: &tapplan::scheme::Scheme,
+) -> Result<tapplan::simulate::DesignOverrides, Outcome> {
+    let mut pumps: Vec<(String, u32)> = Vec::new();
     for p in &a.pumps {
         match tapplan::simulate::parse_pump_override(p) {
-            Ok(x) => pumps.push(x),
+            Ok(x) => {
+                if let Some((_, n)) = pumps.iter().find(|(name, _)| *name == x.0) {
+                    eprintln!(
+                        "error: --pumps names `{}` twice ({n} and {} units); give each pump type once",
+                        tapplan::text::escape_controls(&x.0),
+                        x.1
+                    );
+                    return Err(Outcome::BadInput);
+                }
+                pumps.push(x)
+            }
             Err(e) => {
-                eprintln!("error: --pumps {e}");
+                eprintln!("error: --pumps {}", tapplan::text::escape_controls(&e));
                 return Err(Outcome::BadInput);
             }
         }
+    }
+    if a.array_kwp.is_some() && !s.uses_solar() {
+        eprintln!(
+            "error: --array-kwp: the scheme has no solar-driven pump, so an array size would change nothing; leave the option out or add a pump with `drive: solar`"
+        );
+        return Err(Outcome::BadInput);
     }
     Ok(tapplan::simulate::DesignOverrides {
         tank_m3: a.tank_m3,
@@ -264,9 +285,13 @@ fn overrides(a: &cli::DesignArgs) -> Result<tapplan::simulate::DesignOverrides, 
 
 fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {
     use tapplan::output::table;
+    if let Some(why) = output_clash(&a.hourly, &a.json) {
+        eprintln!("error: {why}");
+        return Ok(Outcome::BadInput);
+    }
     let loaded = tryo!(load(&a.file));
     let s = &loaded.scheme;
-    let o = tryo!(overrides(&a.design));
+    let o = tryo!(overrides(&a.design, s));
     let design = match tapplan::simulate::resolve_design(s, &o) {
         Ok(d) => d,
         Err(e) => {
@@ -510,8 +535,48 @@ fn output_folder_ok(out: &Path) -> bool {
     }
 }
 
+/// Why `--hourly` and `--json` cannot both be written: the same file, or both standard output.
+fn output_clash(
+    hourly: &Option<std::path::PathBuf>,
+    json: &Option<std::path::PathBuf>,
+) -> Option<String> {
+    let (Some(h), Some(j)) = (hourly, json) else {
+        return None;
+    };
+    if h.as_os_str() == "-" && j.as_os_str() == "-" {
+        return Some(
+            "--hourly - and --json - would mix CSV and JSON in one stream; send one of them to a file".into(),
+        );
+    }
+    // the folder resolved (links and `.` followed), the name kept: files not yet there too
+    let place = |p: &Path| {
+        let dir = match p.parent() {
+            Some(d) if !d.as_os_str().is_empty() => d,
+            _ => Path::new("."),
+        };
+        dir.canonicalize()
+            .ok()
+            .zip(p.file_name().map(|n| n.to_owned()))
+    };
+    let same = h == j
+        || matches!((h.canonicalize(), j.canonicalize()), (Ok(x), Ok(y)) if x == y)
+        || matches!((place(h), place(j)), (Some(x), Some(y)) if x == y);
+    same.then(|| {
+        format!(
+            "--hourly and --json both name '{}'; one would overwrite the other — give each its own file",
+            shown(h)
+        )
+    })
+}
+
 fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
     use tapplan::output::pdf::plan;
+    if a.output.as_os_str() == "-" && std::io::IsTerminal::is_terminal(&std::io::stdout()) {
+        eprintln!(
+            "error: -o - would write the PDF's bytes to the terminal; give a file name, or send standard output to a file or a program (`-o - > plan.pdf`)"
+        );
+        return Ok(Outcome::BadInput);
+    }
     if !output_folder_ok(&a.output) {
         return Ok(Outcome::BadInput);
     }
@@ -526,7 +591,7 @@ fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
         };
     let given =
         !a.design.pumps.is_empty() || a.design.tank_m3.is_some() || a.design.array_kwp.is_some();
-    let o = tryo!(overrides(&a.design));
+    let o = tryo!(overrides(&a.design, &loaded.scheme));
     let name = a
         .file
         .file_name()
