@@ -37,6 +37,34 @@ macro_rules! out {
     };
 }
 
+/// `eprintln!` and `eprint!` with control characters escaped (line breaks kept): text from a
+/// file (a scheme name, an unknown key, a file name) cannot drive the terminal.
+macro_rules! eprintln {
+    () => {
+        err_text(format_args!(""), true)
+    };
+    ($($arg:tt)*) => {
+        err_text(format_args!($($arg)*), true)
+    };
+}
+macro_rules! eprint {
+    ($($arg:tt)*) => {
+        err_text(format_args!($($arg)*), false)
+    };
+}
+
+/// Writes to standard error with control characters escaped (see [`eprintln!`]).
+fn err_text(args: std::fmt::Arguments, newline: bool) {
+    use std::io::Write;
+    let text = args.to_string();
+    let text = tapplan::text::escape_controls_keep_lines(&text);
+    let mut e = std::io::stderr().lock();
+    let _ = e.write_all(text.as_bytes());
+    if newline {
+        let _ = e.write_all(b"\n");
+    }
+}
+
 /// How a command ended.
 enum Outcome {
     Ok,
@@ -79,11 +107,15 @@ fn shown(p: &Path) -> String {
 
 /// Writes to standard output. Once its reader has closed the pipe the rest is dropped: the
 /// command still finishes, and its exit status still tells its outcome.
+/// Control characters in the text are escaped (line breaks kept): text from a file cannot
+/// drive the terminal.
 fn put(args: std::fmt::Arguments, newline: bool) -> std::io::Result<()> {
     use std::io::Write;
+    let text = args.to_string();
+    let text = tapplan::text::escape_controls_keep_lines(&text);
     let mut o = std::io::stdout().lock();
     let r = o
-        .write_fmt(args)
+        .write_all(text.as_bytes())
         .and_then(|_| if newline { o.write_all(b"\n") } else { Ok(()) });
     match r {
         Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
@@ -411,7 +443,9 @@ fn cmd_check(a: cli::CheckArgs) -> anyhow::Result<Outcome> {
     let progress = total > 20 && std::io::stderr().is_terminal();
     let on_done = |n: usize| {
         if progress {
-            eprint!("\rchecked {n}/{total} files");
+            // the carriage return is this program's own (the progress line rewrites itself)
+            use std::io::Write;
+            let _ = write!(std::io::stderr(), "\rchecked {n}/{total} files");
         }
     };
     let checks = tapplan::rules::check_files(&a.files, &rules, &on_done);
@@ -706,6 +740,11 @@ fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
             return Ok(Outcome::BadInput);
         }
         let inputs: [&Path; 1] = [&a.pdf];
+        if out.as_os_str() == "-" && std::io::IsTerminal::is_terminal(&std::io::stdout()) {
+            // shown on a terminal: through `put`, which escapes control characters
+            out!("{}", String::from_utf8_lossy(&scheme_bytes));
+            return Ok(Outcome::Ok);
+        }
         if let Err(e) = emit(out, &scheme_bytes, &inputs) {
             eprintln!("error: {e}");
             return Ok(Outcome::BadInput);

@@ -380,3 +380,46 @@ fn the_nesting_is_refused_where_it_passes_the_limit() {
         "{stderr}"
     );
 }
+
+/// No control character from a file reaches the terminal: every corpus file's messages, and
+/// the output of check, run and size on a valid scheme whose name holds escape sequences
+/// (window title, colour, bell), show them escaped (`\u{1b}`).
+#[test]
+fn control_characters_from_files_are_shown_escaped() {
+    let raw = |s: &str| s.chars().any(|c| c.is_control() && c != '\n');
+    for e in expectations() {
+        let (_, stderr) = check_in(&corpus_dir(), &e.file);
+        assert!(!raw(&stderr), "{}: {stderr:?}", e.file);
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/kessa-ridge-solar.yaml"),
+    )
+    .unwrap()
+    .replace(
+        "  name: Kessa Ridge solar borehole",
+        "  name: \"Kessa \\e]0;title\\a\\e[31mRed\\e[0m\"",
+    );
+    assert!(text.contains("\\e[31m"), "the sample's name line changed");
+    std::fs::write(dir.path().join("esc.yaml"), text).unwrap();
+    for args in [
+        vec!["check", "esc.yaml"],
+        vec!["run", "esc.yaml"],
+        vec!["size", "esc.yaml"],
+    ] {
+        let o = Command::cargo_bin("tapplan")
+            .unwrap()
+            .current_dir(dir.path())
+            .args(&args)
+            .timeout(LIMIT)
+            .output()
+            .unwrap();
+        let out = String::from_utf8_lossy(&o.stdout);
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert!(
+            out.contains("Kessa \\u{1b}]0;title\\u{7}"),
+            "{args:?}: {out}"
+        );
+        assert!(!raw(&out) && !raw(&err), "{args:?}: {out:?} {err:?}");
+    }
+}
