@@ -174,7 +174,7 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
     use tapplan::output::table;
     let loaded = tryo!(load(&a.file));
     let s = &loaded.scheme;
-    let m = tryo!(model(&a.file, s));
+    let m = tryo!(model(&loaded));
     let n_designs = match tapplan::sizing::estimate_search(&m) {
         Ok(est) => {
             if est.year_simulations > tapplan::sizing::LARGE_SEARCH_YEAR_SIMULATIONS {
@@ -208,7 +208,7 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
                 p
             }
             Err(e) => {
-                eprintln!("{}: {e}", a.file.display());
+                eprint!("{}", loaded.problem(&e.to_string()));
                 return Ok(Outcome::BadInput);
             }
         }
@@ -269,9 +269,9 @@ fn load(path: &Path) -> Result<tapplan::scheme::Loaded, Outcome> {
 }
 
 /// Builds the engine model, reporting input problems found while preparing (exit 2).
-fn model(path: &Path, s: &tapplan::scheme::Scheme) -> Result<tapplan::simulate::Model, Outcome> {
-    tapplan::simulate::Model::new(s).map_err(|e| {
-        eprintln!("{}: {e}", path.display());
+fn model(loaded: &tapplan::scheme::Loaded) -> Result<tapplan::simulate::Model, Outcome> {
+    tapplan::simulate::Model::new(&loaded.scheme).map_err(|e| {
+        eprint!("{}", loaded.problem(&e.to_string()));
         Outcome::BadInput
     })
 }
@@ -331,7 +331,7 @@ fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {
             return Ok(Outcome::BadInput);
         }
     };
-    let m = tryo!(model(&a.file, s));
+    let m = tryo!(model(&loaded));
     let r = tapplan::simulate::run_report(&m, &design);
     let to_stdout =
         |p: &Option<std::path::PathBuf>| p.as_ref().is_some_and(|p| p.as_os_str() == "-");
@@ -643,7 +643,7 @@ fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
         ) {
             Ok(r) => r,
             Err(e) => {
-                eprintln!("{}: {e}", a.file.display());
+                eprint!("{}", loaded.problem(&e.to_string()));
                 return Ok(Outcome::BadInput);
             }
         }

@@ -423,3 +423,34 @@ fn control_characters_from_files_are_shown_escaped() {
         assert!(!raw(&out) && !raw(&err), "{args:?}: {out:?} {err:?}");
     }
 }
+
+/// Problems found beyond the file's own fields (the irradiation against the sunlight at the
+/// top of the atmosphere, the weather file's contents) are reported with their line, every
+/// impossible month, and beside the file's other problems.
+#[test]
+fn later_stage_problems_come_with_lines_and_with_the_others() {
+    let (code, stderr) = check_in(&corpus_dir(), "irradiation_two_impossible_months.yaml");
+    assert_eq!(code, Some(2));
+    let f = "irradiation_two_impossible_months.yaml";
+    // lines counted in the files: population on 18, the irradiation list on 60, weather.file
+    // on 131
+    for (line, field) in [
+        (18, "demand.population"),
+        (60, "drives.solar.irradiation_kwh_per_m2_day[5]"),
+        (60, "drives.solar.irradiation_kwh_per_m2_day[6]"),
+    ] {
+        assert!(
+            problem_lines(&stderr, f)
+                .iter()
+                .any(|p| p.starts_with(&format!("  {f}:{line}:"))
+                    && p.contains(&format!(": {field}: "))),
+            "{field} at line {line}:\n{stderr}"
+        );
+    }
+    assert_eq!(problem_count(&stderr, f), 3, "{stderr}");
+    let f = "weather_file_bad_header_and_other_problem.yaml";
+    let (_, stderr) = check_in(&corpus_dir(), f);
+    assert_eq!(problem_count(&stderr, f), 2, "{stderr}");
+    assert!(stderr.contains(&format!("  {f}:18:")), "{stderr}");
+    assert!(stderr.contains(&format!("  {f}:131:")), "{stderr}");
+}

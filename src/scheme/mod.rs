@@ -17,6 +17,41 @@ use crate::error::SchemeError;
 pub struct Loaded {
     pub scheme: Scheme,
     pub source: load::Source,
+    /// Where each field is in the file, for problems found after validation.
+    pub lines: load::LineMap,
+}
+
+impl Loaded {
+    /// A problem found after validation (preparing a run, a search's limits), as a problem of
+    /// the file: a message that starts with a field path (`pumps[1].curve: …`) gets that
+    /// field's line and column.
+    pub fn problem(&self, message: &str) -> SchemeError {
+        let (field, rest) = match message.split_once(": ") {
+            Some((f, rest))
+                if !f.is_empty()
+                    && f.chars().all(|c| {
+                        c.is_ascii_alphanumeric() || matches!(c, '_' | '.' | '[' | ']')
+                    }) =>
+            {
+                (f.to_string(), rest.to_string())
+            }
+            _ => (String::new(), message.to_string()),
+        };
+        let at = if field.is_empty() {
+            None
+        } else {
+            self.lines.locate(&field)
+        };
+        SchemeError {
+            file: self.source.label.clone(),
+            problems: vec![crate::error::Problem {
+                field,
+                line: at.map(|a| a.0),
+                column: at.map(|a| a.1),
+                message: rest,
+            }],
+        }
+    }
 }
 
 /// Reads, parses and validates a scheme file.
@@ -40,7 +75,11 @@ pub fn load_bytes(bytes: &[u8], label: &str, base_dir: &Path) -> Result<Loaded, 
 fn load_source(source: load::Source) -> Result<Loaded, SchemeError> {
     let (raw, lines) = load::parse_raw(&source)?;
     match validate::validate(&raw, &lines, &source.base_dir) {
-        Ok(scheme) => Ok(Loaded { scheme, source }),
+        Ok(scheme) => Ok(Loaded {
+            scheme,
+            source,
+            lines,
+        }),
         Err(problems) => Err(SchemeError {
             file: source.label.clone(),
             problems,

@@ -1406,6 +1406,43 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
         }
     };
     let uses_solar = pumps.iter().any(|p| p.drive == DriveKind::Solar);
+    // Checks the engine would otherwise meet only when preparing a run, made here so they are
+    // reported with their line and beside every other problem of the file.
+    if uses_solar {
+        match (&weather.mode, &solar) {
+            (WeatherMode::Synthetic { .. }, Some(sol)) => {
+                let kt = crate::simulate::inputs::monthly_mean_clearness(
+                    latitude_deg.to_radians(),
+                    &sol.irradiation_j_per_m2_day,
+                );
+                let (lo, hi) = (
+                    crate::weather::MONTHLY_MEAN_KT_MIN,
+                    crate::weather::MONTHLY_MEAN_KT_MAX,
+                );
+                for (m, k) in kt.iter().enumerate() {
+                    let field = format!("drives.solar.irradiation_kwh_per_m2_day[{m}]");
+                    let reported = c.problems.iter().any(|p| p.field == field);
+                    if !reported && !(lo..hi).contains(k) {
+                        c.err(
+                            &field,
+                            format!(
+                                "{:.2} kWh/m²/day is {:.0} % of the sunlight reaching the top of the atmosphere at this latitude in {}; a monthly mean clearness index must lie between {lo} and {hi} — check the value and its unit (kWh/m² per day on the horizontal)",
+                                sol.irradiation_j_per_m2_day[m] / 3.6e6,
+                                k * 100.0,
+                                crate::weather::MONTH_NAMES[m],
+                            ),
+                        );
+                    }
+                }
+            }
+            (WeatherMode::File { path }, _) if path.is_file() => {
+                if let Err(e) = crate::weather::read_weather_file(path) {
+                    c.err("weather.file", e.to_string());
+                }
+            }
+            _ => {}
+        }
+    }
     if !uses_solar && !matches!(weather.mode, WeatherMode::MeanDays) {
         c.warn(
             "weather",

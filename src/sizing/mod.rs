@@ -249,7 +249,7 @@ pub fn pump_sets(s: &Scheme) -> Result<Vec<Vec<u32>>, Error> {
     }
     if total > MAX_PUMP_SETS {
         return Err(Error::Input(format!(
-            "the pump ranges give {total} combinations of units; at most {MAX_PUMP_SETS} are searched — lower some pumps[].max_units"
+            "pumps: the pump ranges give {total} combinations of units; at most {MAX_PUMP_SETS} are searched — lower some pumps[].max_units"
         )));
     }
     let mut sets = vec![Vec::new()];
