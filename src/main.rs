@@ -214,7 +214,10 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
         }
     };
     let cur = &s.info.currency;
-    let json_stdout = a.json.as_ref().is_some_and(|p| p.as_os_str() == "-");
+    let json_stdout = a
+        .json
+        .as_ref()
+        .is_some_and(|p| tapplan::output::files::is_stdout(p));
     if !json_stdout {
         outln!("{}", s.info.name);
         out!("{}", table::plan_summary(&plan, cur));
@@ -333,8 +336,10 @@ fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {
     };
     let m = tryo!(model(&loaded));
     let r = tapplan::simulate::run_report(&m, &design);
-    let to_stdout =
-        |p: &Option<std::path::PathBuf>| p.as_ref().is_some_and(|p| p.as_os_str() == "-");
+    let to_stdout = |p: &Option<std::path::PathBuf>| {
+        p.as_ref()
+            .is_some_and(|p| tapplan::output::files::is_stdout(p))
+    };
     let quiet_tables = a.quiet || to_stdout(&a.hourly) || to_stdout(&a.json);
     if !quiet_tables {
         outln!("{}", s.info.name);
@@ -534,7 +539,7 @@ fn cmd_rules(a: cli::RulesArgs) -> anyhow::Result<Outcome> {
 /// Checks that the output's folder exists, so the error names the folder rather than a
 /// temporary file.
 fn output_folder_ok(out: &Path) -> bool {
-    if out.as_os_str() == "-" {
+    if tapplan::output::files::is_stdout(out) {
         return true;
     }
     let Some(p) = out.parent().filter(|p| !p.as_os_str().is_empty()) else {
@@ -577,7 +582,8 @@ fn output_clash(
     let (Some(h), Some(j)) = (hourly, json) else {
         return None;
     };
-    if h.as_os_str() == "-" && j.as_os_str() == "-" {
+    use tapplan::output::files::is_stdout;
+    if is_stdout(h) && is_stdout(j) {
         return Some(
             "--hourly - and --json - would mix CSV and JSON in one stream; send one of them to a file".into(),
         );
@@ -605,7 +611,9 @@ fn output_clash(
 
 fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
     use tapplan::output::pdf::plan;
-    if a.output.as_os_str() == "-" && std::io::IsTerminal::is_terminal(&std::io::stdout()) {
+    if tapplan::output::files::is_stdout(&a.output)
+        && std::io::IsTerminal::is_terminal(&std::io::stdout())
+    {
         eprintln!(
             "error: -o - would write the PDF's bytes to the terminal; give a file name, or send standard output to a file or a program (`-o - > plan.pdf`)"
         );
@@ -662,7 +670,7 @@ fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
         f.shortfall_hours_horizon_year,
         if run.target_met { "met" } else { "NOT met" }
     );
-    if a.output.as_os_str() == "-" {
+    if tapplan::output::files::is_stdout(&a.output) {
         eprintln!("{line}");
     } else {
         outln!("{line}");
@@ -740,7 +748,9 @@ fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
             return Ok(Outcome::BadInput);
         }
         let inputs: [&Path; 1] = [&a.pdf];
-        if out.as_os_str() == "-" && std::io::IsTerminal::is_terminal(&std::io::stdout()) {
+        if tapplan::output::files::is_stdout(out)
+            && std::io::IsTerminal::is_terminal(&std::io::stdout())
+        {
             // shown on a terminal: through `put`, which escapes control characters
             out!("{}", String::from_utf8_lossy(&scheme_bytes));
             return Ok(Outcome::Ok);
@@ -749,7 +759,7 @@ fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
             eprintln!("error: {e}");
             return Ok(Outcome::BadInput);
         }
-        if out.as_os_str() != "-" {
+        if !tapplan::output::files::is_stdout(out) {
             outln!(
                 "wrote the embedded scheme file to '{}' ({} bytes)",
                 out.display(),

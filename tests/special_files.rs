@@ -251,3 +251,37 @@ fn new_on_a_folder_and_a_full_standard_output_say_what_they_are() {
         }
     }
 }
+
+#[test]
+fn standard_output_and_error_aliases_are_written_directly() {
+    let dir = tempfile::tempdir().unwrap();
+    let o = tapplan(
+        dir.path(),
+        &["run", &sample_path(), "-q", "--json", "/dev/stdout"],
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", err(&o));
+    assert!(
+        o.stdout.starts_with(b"{"),
+        "{}",
+        String::from_utf8_lossy(&o.stdout)
+    );
+    let o = tapplan(
+        dir.path(),
+        &["run", &sample_path(), "-q", "--hourly", "/dev/stderr"],
+    );
+    assert_eq!(o.status.code(), Some(0), "{}", err(&o));
+    assert!(err(&o).starts_with("hour"), "{}", err(&o));
+    let o = tapplan(
+        dir.path(),
+        &[
+            "run",
+            &sample_path(),
+            "--hourly",
+            "/dev/stdout",
+            "--json",
+            "-",
+        ],
+    );
+    assert_eq!(o.status.code(), Some(2), "{}", err(&o));
+    assert!(err(&o).contains("would mix CSV and JSON"), "{}", err(&o));
+}

@@ -98,10 +98,19 @@ fn special(meta: &std::fs::Metadata) -> Option<Special> {
     Some(Special::Refuse(crate::input::kind_of(meta)))
 }
 
-/// Writes `bytes` to `path` whole (see the module notes). `path` of `-` writes to standard
-/// output.
+/// True for `-` and the names of standard output itself (`/dev/stdout`, `/dev/fd/1`,
+/// `/proc/self/fd/1`): they are written to this process's standard output.
+pub fn is_stdout(path: &Path) -> bool {
+    matches!(
+        path.to_str(),
+        Some("-" | "/dev/stdout" | "/dev/fd/1" | "/proc/self/fd/1")
+    )
+}
+
+/// Writes `bytes` to `path` whole (see the module notes). `path` of `-` (or a name of
+/// standard output, see [`is_stdout`]) writes to standard output.
 pub fn write_output(path: &Path, bytes: &[u8], inputs: &[&Path]) -> Result<(), WriteError> {
-    if path.as_os_str() == "-" {
+    if is_stdout(path) {
         let mut out = std::io::stdout().lock();
         return out
             .write_all(bytes)
@@ -115,13 +124,14 @@ pub fn write_output(path: &Path, bytes: &[u8], inputs: &[&Path]) -> Result<(), W
         path: path.to_path_buf(),
         error,
     };
-    let target = follow_links(path).map_err(io)?;
-    if let Ok(meta) = std::fs::metadata(&target) {
+    // what the path leads to, as the kernel follows it (this also resolves /dev/stderr and
+    // /proc/self/fd/N, whose links do not name a path)
+    if let Ok(meta) = std::fs::metadata(path) {
         match special(&meta) {
             Some(Special::Through) => {
                 let mut f = std::fs::OpenOptions::new()
                     .write(true)
-                    .open(&target)
+                    .open(path)
                     .map_err(io)?;
                 return f.write_all(bytes).and_then(|_| f.flush()).map_err(io);
             }
@@ -134,6 +144,7 @@ pub fn write_output(path: &Path, bytes: &[u8], inputs: &[&Path]) -> Result<(), W
             None => {}
         }
     }
+    let target = follow_links(path).map_err(io)?;
     let dir = match target.parent() {
         Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
         _ => PathBuf::from("."),
