@@ -86,3 +86,32 @@ fn load_source(source: load::Source) -> Result<Loaded, SchemeError> {
         }),
     }
 }
+
+#[cfg(test)]
+mod loaded_tests {
+    use super::*;
+
+    /// A message that starts with a field path gets the field's line (counted in the text);
+    /// any other message is a whole-file problem.
+    #[test]
+    fn later_problems_get_the_line_of_the_field_they_name() {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/kessa-ridge-solar.yaml");
+        let text = std::fs::read_to_string(&path).unwrap();
+        let l = load_str(&text, "k.yaml", Path::new(".")).unwrap();
+        let line = text
+            .lines()
+            .position(|t| t.trim_start().starts_with("pumps:"))
+            .unwrap()
+            + 1;
+        let e = l.problem("pumps: the pump ranges give 900 combinations of units");
+        assert_eq!(e.problems[0].field, "pumps");
+        assert_eq!(e.problems[0].line, Some(line));
+        assert!(
+            e.to_string()
+                .contains(&format!("k.yaml:{line}:1: pumps: the pump ranges"))
+        );
+        let e = l.problem("the ranges hold 5 designs: too many");
+        assert_eq!(e.problems[0].field, "");
+        assert_eq!(e.problems[0].line, None);
+    }
+}
