@@ -394,7 +394,7 @@ impl Pump {
     /// from its borehole's static water level to the tank inlet: (that head, the static lift),
     /// both m. Such a pump delivers no water at any speed or count of units in parallel (head
     /// scales with the square of the speed and the speed is at most rated: affinity laws,
-    /// e.g. Karassik et al., Pump Handbook, 4th ed. 2008, ch. 2).
+    /// Karassik et al., Pump Handbook, 4th ed., 2008, ch. 2 — from memory).
     pub fn cannot_lift_m(&self, boreholes: &[Borehole], tank: &Tank) -> Option<(f64, f64)> {
         let PumpKind::Curve { points, .. } = &self.kind else {
             return None;
