@@ -285,3 +285,39 @@ fn standard_output_and_error_aliases_are_written_directly() {
     assert_eq!(o.status.code(), Some(2), "{}", err(&o));
     assert!(err(&o).contains("would mix CSV and JSON"), "{}", err(&o));
 }
+
+/// A character device as the output (a null device made in a temporary folder, so a failure
+/// cannot touch the system's own `/dev/null`) is written through and stays a device. Needs
+/// the right to make device nodes (root); skipped without it.
+#[test]
+fn a_character_device_output_stays_a_device() {
+    use std::os::unix::fs::FileTypeExt;
+    let dir = tempfile::tempdir().unwrap();
+    let node = dir.path().join("null.json");
+    let made = std::process::Command::new("mknod")
+        .arg(&node)
+        .args(["c", "1", "3"])
+        .stderr(std::process::Stdio::null())
+        .status()
+        .is_ok_and(|s| s.success());
+    if !made {
+        eprintln!("cannot make a device node here; skipped");
+        return;
+    }
+    for args in [
+        vec!["run", &sample_path(), "-q", "--json", "null.json"],
+        vec!["plan", &sample_path(), "-o", "null.json"],
+    ] {
+        let o = tapplan(dir.path(), &args);
+        assert!(
+            matches!(o.status.code(), Some(0 | 1)),
+            "{args:?}: {}",
+            err(&o)
+        );
+        let t = std::fs::symlink_metadata(&node).unwrap().file_type();
+        assert!(
+            t.is_char_device(),
+            "{args:?}: the device was replaced by a file"
+        );
+    }
+}
