@@ -139,13 +139,13 @@ pub struct SizeArgs {
 #[derive(Debug, Args, Clone)]
 pub struct DesignArgs {
     /// Tank capacity to use instead of the file's (m³)
-    #[arg(long, value_name = "M3")]
+    #[arg(long, value_name = "M3", allow_negative_numbers = true)]
     pub tank_m3: Option<f64>,
     /// Installed units of a pump type, NAME=N (repeat for several types)
     #[arg(long, value_name = "NAME=N")]
     pub pumps: Vec<String>,
     /// PV array size to use instead of the file's (kWp)
-    #[arg(long, value_name = "KWP")]
+    #[arg(long, value_name = "KWP", allow_negative_numbers = true)]
     pub array_kwp: Option<f64>,
 }
 

@@ -9,6 +9,7 @@
 //! Nothing downstream reaches back upstream: renderers never recompute physics.
 
 pub mod error;
+pub mod input;
 pub mod output;
 pub mod physics;
 pub mod pumptest;
@@ -17,4 +18,5 @@ pub mod scheme;
 pub mod simulate;
 pub mod sizing;
 pub mod templates;
+pub mod text;
 pub mod weather;

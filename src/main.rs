@@ -37,6 +37,34 @@ macro_rules! out {
     };
 }
 
+/// `eprintln!` and `eprint!` with control characters escaped (line breaks kept): text from a
+/// file (a scheme name, an unknown key, a file name) cannot drive the terminal.
+macro_rules! eprintln {
+    () => {
+        err_text(format_args!(""), true)
+    };
+    ($($arg:tt)*) => {
+        err_text(format_args!($($arg)*), true)
+    };
+}
+macro_rules! eprint {
+    ($($arg:tt)*) => {
+        err_text(format_args!($($arg)*), false)
+    };
+}
+
+/// Writes to standard error with control characters escaped (see [`eprintln!`]).
+fn err_text(args: std::fmt::Arguments, newline: bool) {
+    use std::io::Write;
+    let text = args.to_string();
+    let text = tapplan::text::escape_controls_keep_lines(&text);
+    let mut e = std::io::stderr().lock();
+    let _ = e.write_all(text.as_bytes());
+    if newline {
+        let _ = e.write_all(b"\n");
+    }
+}
+
 /// How a command ended.
 enum Outcome {
     Ok,
@@ -67,23 +95,37 @@ fn main() -> ExitCode {
 /// reader has closed the pipe, the rest is dropped, as [`put`] does.
 fn emit(path: &Path, bytes: &[u8], inputs: &[&Path]) -> Result<(), WriteError> {
     match write_output(path, bytes, inputs) {
-        Err(WriteError::Io { source, .. }) if source.kind() == std::io::ErrorKind::BrokenPipe => {
-            Ok(())
-        }
+        Err(e) if e.io_kind() == Some(std::io::ErrorKind::BrokenPipe) => Ok(()),
         r => r,
     }
 }
 
+/// A path as shown on the terminal: control characters escaped.
+fn shown(p: &Path) -> String {
+    tapplan::text::escape_controls(&p.display().to_string()).into_owned()
+}
+
 /// Writes to standard output. Once its reader has closed the pipe the rest is dropped: the
 /// command still finishes, and its exit status still tells its outcome.
+/// Control characters in the text are escaped (line breaks kept): text from a file cannot
+/// drive the terminal.
 fn put(args: std::fmt::Arguments, newline: bool) -> std::io::Result<()> {
     use std::io::Write;
+    let text = args.to_string();
+    let text = tapplan::text::escape_controls_keep_lines(&text);
     let mut o = std::io::stdout().lock();
     let r = o
-        .write_fmt(args)
+        .write_all(text.as_bytes())
         .and_then(|_| if newline { o.write_all(b"\n") } else { Ok(()) });
     match r {
         Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => Ok(()),
+        Err(e) => Err(std::io::Error::new(
+            e.kind(),
+            format!(
+                "could not write to standard output: {}",
+                tapplan::input::plain_io(&e)
+            ),
+        )),
         r => r,
     }
 }
@@ -133,7 +175,7 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
     use tapplan::output::table;
     let loaded = tryo!(load(&a.file));
     let s = &loaded.scheme;
-    let m = tryo!(model(&a.file, s));
+    let m = tryo!(model(&loaded));
     let n_designs = match tapplan::sizing::estimate_search(&m) {
         Ok(est) => {
             if est.year_simulations > tapplan::sizing::LARGE_SEARCH_YEAR_SIMULATIONS {
@@ -167,13 +209,16 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
                 p
             }
             Err(e) => {
-                eprintln!("{}: {e}", a.file.display());
+                eprint!("{}", loaded.problem(&e.to_string()));
                 return Ok(Outcome::BadInput);
             }
         }
     };
     let cur = &s.info.currency;
-    let json_stdout = a.json.as_ref().is_some_and(|p| p.as_os_str() == "-");
+    let json_stdout = a
+        .json
+        .as_ref()
+        .is_some_and(|p| tapplan::output::files::is_stdout(p));
     if !json_stdout {
         outln!("{}", s.info.name);
         out!("{}", table::plan_summary(&plan, cur));
@@ -229,23 +274,44 @@ fn load(path: &Path) -> Result<tapplan::scheme::Loaded, Outcome> {
 }
 
 /// Builds the engine model, reporting input problems found while preparing (exit 2).
-fn model(path: &Path, s: &tapplan::scheme::Scheme) -> Result<tapplan::simulate::Model, Outcome> {
-    tapplan::simulate::Model::new(s).map_err(|e| {
-        eprintln!("{}: {e}", path.display());
+fn model(loaded: &tapplan::scheme::Loaded) -> Result<tapplan::simulate::Model, Outcome> {
+    tapplan::simulate::Model::new(&loaded.scheme).map_err(|e| {
+        eprint!("{}", loaded.problem(&e.to_string()));
         Outcome::BadInput
     })
 }
 
-fn overrides(a: &cli::DesignArgs) -> Result<tapplan::simulate::DesignOverrides, Outcome> {
-    let mut pumps = Vec::new();
+/// The design options given, checked against each other and against the scheme: a pump type
+/// named twice, or an array size for a scheme without a solar-driven pump, is refused.
+fn overrides(
+    a: &cli::DesignArgs,
+    s: &tapplan::scheme::Scheme,
+) -> Result<tapplan::simulate::DesignOverrides, Outcome> {
+    let mut pumps: Vec<(String, u32)> = Vec::new();
     for p in &a.pumps {
         match tapplan::simulate::parse_pump_override(p) {
-            Ok(x) => pumps.push(x),
+            Ok(x) => {
+                if let Some((_, n)) = pumps.iter().find(|(name, _)| *name == x.0) {
+                    eprintln!(
+                        "error: --pumps names `{}` twice ({n} and {} units); give each pump type once",
+                        tapplan::text::escape_controls(&x.0),
+                        x.1
+                    );
+                    return Err(Outcome::BadInput);
+                }
+                pumps.push(x)
+            }
             Err(e) => {
-                eprintln!("error: --pumps {e}");
+                eprintln!("error: --pumps {}", tapplan::text::escape_controls(&e));
                 return Err(Outcome::BadInput);
             }
         }
+    }
+    if a.array_kwp.is_some() && !s.uses_solar() {
+        eprintln!(
+            "error: --array-kwp: the scheme has no solar-driven pump, so an array size would change nothing; leave the option out or add a pump with `drive: solar`"
+        );
+        return Err(Outcome::BadInput);
     }
     Ok(tapplan::simulate::DesignOverrides {
         tank_m3: a.tank_m3,
@@ -256,9 +322,13 @@ fn overrides(a: &cli::DesignArgs) -> Result<tapplan::simulate::DesignOverrides, 
 
 fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {
     use tapplan::output::table;
+    if let Some(why) = output_clash(&a.hourly, &a.json) {
+        eprintln!("error: {why}");
+        return Ok(Outcome::BadInput);
+    }
     let loaded = tryo!(load(&a.file));
     let s = &loaded.scheme;
-    let o = tryo!(overrides(&a.design));
+    let o = tryo!(overrides(&a.design, s));
     let design = match tapplan::simulate::resolve_design(s, &o) {
         Ok(d) => d,
         Err(e) => {
@@ -266,10 +336,12 @@ fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {
             return Ok(Outcome::BadInput);
         }
     };
-    let m = tryo!(model(&a.file, s));
+    let m = tryo!(model(&loaded));
     let r = tapplan::simulate::run_report(&m, &design);
-    let to_stdout =
-        |p: &Option<std::path::PathBuf>| p.as_ref().is_some_and(|p| p.as_os_str() == "-");
+    let to_stdout = |p: &Option<std::path::PathBuf>| {
+        p.as_ref()
+            .is_some_and(|p| tapplan::output::files::is_stdout(p))
+    };
     let quiet_tables = a.quiet || to_stdout(&a.hourly) || to_stdout(&a.json);
     if !quiet_tables {
         outln!("{}", s.info.name);
@@ -331,6 +403,17 @@ fn cmd_new(a: cli::NewArgs) -> anyhow::Result<Outcome> {
         );
         return Ok(Outcome::BadInput);
     };
+    if !output_folder_ok(&file) {
+        return Ok(Outcome::BadInput);
+    }
+    if file.is_dir() {
+        eprintln!(
+            "error: '{}' is a folder; give the path of the scheme file to create, e.g. '{}'",
+            shown(&file),
+            shown(&file.join("village.yaml"))
+        );
+        return Ok(Outcome::BadInput);
+    }
     if file.exists() && !a.force {
         eprintln!(
             "error: '{}' already exists; choose another name or add --force to overwrite it",
@@ -367,7 +450,9 @@ fn cmd_check(a: cli::CheckArgs) -> anyhow::Result<Outcome> {
     let progress = total > 20 && std::io::stderr().is_terminal();
     let on_done = |n: usize| {
         if progress {
-            eprint!("\rchecked {n}/{total} files");
+            // the carriage return is this program's own (the progress line rewrites itself)
+            use std::io::Write;
+            let _ = write!(std::io::stderr(), "\rchecked {n}/{total} files");
         }
     };
     let checks = tapplan::rules::check_files(&a.files, &rules, &on_done);
@@ -456,38 +541,101 @@ fn cmd_rules(a: cli::RulesArgs) -> anyhow::Result<Outcome> {
 /// Checks that the output's folder exists, so the error names the folder rather than a
 /// temporary file.
 fn output_folder_ok(out: &Path) -> bool {
-    if out.as_os_str() == "-" {
+    if tapplan::output::files::is_stdout(out) {
         return true;
     }
-    match out.parent() {
-        Some(p) if !p.as_os_str().is_empty() && !p.is_dir() => {
+    let Some(p) = out.parent().filter(|p| !p.as_os_str().is_empty()) else {
+        return true;
+    };
+    match std::fs::metadata(p) {
+        Ok(m) if m.is_dir() => true,
+        Ok(_) => {
             eprintln!(
-                "error: cannot write '{}': the folder '{}' does not exist; create it or choose another output path",
-                out.display(),
-                p.display()
+                "error: cannot write '{}': '{}' is not a folder; choose another output path",
+                shown(out),
+                shown(p)
             );
             false
         }
-        _ => true,
+        Err(e) if e.kind() == std::io::ErrorKind::NotFound => {
+            eprintln!(
+                "error: cannot write '{}': the folder '{}' does not exist; create it or choose another output path",
+                shown(out),
+                shown(p)
+            );
+            false
+        }
+        Err(e) => {
+            eprintln!(
+                "error: cannot write '{}': {}",
+                shown(out),
+                tapplan::input::plain_io(&e)
+            );
+            false
+        }
     }
+}
+
+/// Why `--hourly` and `--json` cannot both be written: the same file, or both standard output.
+fn output_clash(
+    hourly: &Option<std::path::PathBuf>,
+    json: &Option<std::path::PathBuf>,
+) -> Option<String> {
+    let (Some(h), Some(j)) = (hourly, json) else {
+        return None;
+    };
+    use tapplan::output::files::is_stdout;
+    if is_stdout(h) && is_stdout(j) {
+        return Some(
+            "--hourly - and --json - would mix CSV and JSON in one stream; send one of them to a file".into(),
+        );
+    }
+    // the folder resolved (links and `.` followed), the name kept: files not yet there too
+    let place = |p: &Path| {
+        let dir = match p.parent() {
+            Some(d) if !d.as_os_str().is_empty() => d,
+            _ => Path::new("."),
+        };
+        dir.canonicalize()
+            .ok()
+            .zip(p.file_name().map(|n| n.to_owned()))
+    };
+    let same = h == j
+        || matches!((h.canonicalize(), j.canonicalize()), (Ok(x), Ok(y)) if x == y)
+        || matches!((place(h), place(j)), (Some(x), Some(y)) if x == y);
+    same.then(|| {
+        format!(
+            "--hourly and --json both name '{}'; one would overwrite the other — give each its own file",
+            shown(h)
+        )
+    })
 }
 
 fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
     use tapplan::output::pdf::plan;
+    if tapplan::output::files::is_stdout(&a.output)
+        && std::io::IsTerminal::is_terminal(&std::io::stdout())
+    {
+        eprintln!(
+            "error: -o - would write the PDF's bytes to the terminal; give a file name, or send standard output to a file or a program (`-o - > plan.pdf`)"
+        );
+        return Ok(Outcome::BadInput);
+    }
     if !output_folder_ok(&a.output) {
         return Ok(Outcome::BadInput);
     }
     let loaded = tryo!(load(&a.file));
-    let bytes = match std::fs::read(&a.file) {
-        Ok(b) => b,
-        Err(e) => {
-            eprintln!("error: cannot read '{}': {e}", a.file.display());
-            return Ok(Outcome::BadInput);
-        }
-    };
+    let bytes =
+        match tapplan::input::read_limited(&a.file, tapplan::scheme::load::MAX_FILE_BYTES as u64) {
+            Ok(b) => b,
+            Err(e) => {
+                eprintln!("error: cannot read '{}': {e}", shown(&a.file));
+                return Ok(Outcome::BadInput);
+            }
+        };
     let given =
         !a.design.pumps.is_empty() || a.design.tank_m3.is_some() || a.design.array_kwp.is_some();
-    let o = tryo!(overrides(&a.design));
+    let o = tryo!(overrides(&a.design, &loaded.scheme));
     let name = a
         .file
         .file_name()
@@ -505,7 +653,7 @@ fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
         ) {
             Ok(r) => r,
             Err(e) => {
-                eprintln!("{}: {e}", a.file.display());
+                eprint!("{}", loaded.problem(&e.to_string()));
                 return Ok(Outcome::BadInput);
             }
         }
@@ -524,7 +672,7 @@ fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
         f.shortfall_hours_horizon_year,
         if run.target_met { "met" } else { "NOT met" }
     );
-    if a.output.as_os_str() == "-" {
+    if tapplan::output::files::is_stdout(&a.output) {
         eprintln!("{line}");
     } else {
         outln!("{line}");
@@ -563,9 +711,15 @@ impl Drop for TempFolder {
 
 fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
     use tapplan::output::pdf::{extract_attachment, plan};
-    let label = a.pdf.display().to_string();
-    let pdf = match std::fs::read(&a.pdf) {
+    let label = shown(&a.pdf);
+    let pdf = match tapplan::input::read_limited(&a.pdf, tapplan::output::pdf::MAX_PLAN_PDF_BYTES) {
         Ok(b) => b,
+        Err(tapplan::input::ReadError::TooLarge { limit }) => {
+            eprintln!(
+                "error: '{label}' is larger than {limit} bytes (64 MiB); a plan PDF written by `tapplan plan` is far smaller — is this the right file?"
+            );
+            return Ok(Outcome::BadInput);
+        }
         Err(e) => {
             eprintln!("error: cannot read '{label}': {e}");
             return Ok(Outcome::BadInput);
@@ -596,11 +750,18 @@ fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
             return Ok(Outcome::BadInput);
         }
         let inputs: [&Path; 1] = [&a.pdf];
+        if tapplan::output::files::is_stdout(out)
+            && std::io::IsTerminal::is_terminal(&std::io::stdout())
+        {
+            // shown on a terminal: through `put`, which escapes control characters
+            out!("{}", String::from_utf8_lossy(&scheme_bytes));
+            return Ok(Outcome::Ok);
+        }
         if let Err(e) = emit(out, &scheme_bytes, &inputs) {
             eprintln!("error: {e}");
             return Ok(Outcome::BadInput);
         }
-        if out.as_os_str() != "-" {
+        if !tapplan::output::files::is_stdout(out) {
             outln!(
                 "wrote the embedded scheme file to '{}' ({} bytes)",
                 out.display(),

@@ -369,7 +369,88 @@ fn a_fractional_unit_count_gives_one_problem() {
 
 #[test]
 
-fn the_nesting_depth_reported_is_the_real_one() {
+/// Reading stops at the first level past the limit (so deep files cost little), and the
+/// message names that place: in this file the root mapping is level 1 (line 1) and each line
+/// opens one more level, so level 33 opens on line 33 (counted in the file).
+fn the_nesting_is_refused_where_it_passes_the_limit() {
     let (_, stderr) = check_in(&corpus_dir(), "deeply_nested_block.yaml");
-    assert!(stderr.contains("nested 62 levels"), "{stderr}");
+    assert!(
+        stderr.contains("deeply_nested_block.yaml:33:")
+            && stderr.contains("nested more than 32 levels"),
+        "{stderr}"
+    );
+}
+
+/// No control character from a file reaches the terminal: every corpus file's messages, and
+/// the output of check, run and size on a valid scheme whose name holds escape sequences
+/// (window title, colour, bell), show them escaped (`\u{1b}`).
+#[test]
+fn control_characters_from_files_are_shown_escaped() {
+    let raw = |s: &str| s.chars().any(|c| c.is_control() && c != '\n');
+    for e in expectations() {
+        let (_, stderr) = check_in(&corpus_dir(), &e.file);
+        assert!(!raw(&stderr), "{}: {stderr:?}", e.file);
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/kessa-ridge-solar.yaml"),
+    )
+    .unwrap()
+    .replace(
+        "  name: Kessa Ridge solar borehole",
+        "  name: \"Kessa \\e]0;title\\a\\e[31mRed\\e[0m\"",
+    );
+    assert!(text.contains("\\e[31m"), "the sample's name line changed");
+    std::fs::write(dir.path().join("esc.yaml"), text).unwrap();
+    for args in [
+        vec!["check", "esc.yaml"],
+        vec!["run", "esc.yaml"],
+        vec!["size", "esc.yaml"],
+    ] {
+        let o = Command::cargo_bin("tapplan")
+            .unwrap()
+            .current_dir(dir.path())
+            .args(&args)
+            .timeout(LIMIT)
+            .output()
+            .unwrap();
+        let out = String::from_utf8_lossy(&o.stdout);
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert!(
+            out.contains("Kessa \\u{1b}]0;title\\u{7}"),
+            "{args:?}: {out}"
+        );
+        assert!(!raw(&out) && !raw(&err), "{args:?}: {out:?} {err:?}");
+    }
+}
+
+/// Problems found beyond the file's own fields (the irradiation against the sunlight at the
+/// top of the atmosphere, the weather file's contents) are reported with their line, every
+/// impossible month, and beside the file's other problems.
+#[test]
+fn later_stage_problems_come_with_lines_and_with_the_others() {
+    let (code, stderr) = check_in(&corpus_dir(), "irradiation_two_impossible_months.yaml");
+    assert_eq!(code, Some(2));
+    let f = "irradiation_two_impossible_months.yaml";
+    // lines counted in the files: population on 18, the irradiation list on 60, weather.file
+    // on 131
+    for (line, field) in [
+        (18, "demand.population"),
+        (60, "drives.solar.irradiation_kwh_per_m2_day[5]"),
+        (60, "drives.solar.irradiation_kwh_per_m2_day[6]"),
+    ] {
+        assert!(
+            problem_lines(&stderr, f)
+                .iter()
+                .any(|p| p.starts_with(&format!("  {f}:{line}:"))
+                    && p.contains(&format!(": {field}: "))),
+            "{field} at line {line}:\n{stderr}"
+        );
+    }
+    assert_eq!(problem_count(&stderr, f), 3, "{stderr}");
+    let f = "weather_file_bad_header_and_other_problem.yaml";
+    let (_, stderr) = check_in(&corpus_dir(), f);
+    assert_eq!(problem_count(&stderr, f), 2, "{stderr}");
+    assert!(stderr.contains(&format!("  {f}:18:")), "{stderr}");
+    assert!(stderr.contains(&format!("  {f}:131:")), "{stderr}");
 }

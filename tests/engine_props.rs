@@ -361,6 +361,111 @@ proptest! {
     }
 }
 
+/// The scheme of `p` with the borehole's tested yield set (m³/h) and, when `two_types`, a
+/// second pump type (a copy of the first under another name) on the same borehole.
+fn yaml_capped(p: &Params, tested_yield_m3_per_h: f64, two_types: bool) -> String {
+    let text = yaml(p).replace(
+        "tested_yield_m3_per_h: 30",
+        &format!("tested_yield_m3_per_h: {tested_yield_m3_per_h:?}"),
+    );
+    if !two_types {
+        return text;
+    }
+    let start = text.find("  - name: Gen-Pump").expect("pump block");
+    let end = text.find("rising_main:").expect("rising main");
+    let copy = text[start..end].replace("name: Gen-Pump", "name: Gen-Pump-B");
+    format!("{}{copy}{}", &text[..end], &text[end..])
+}
+
+proptest! {
+    #![proptest_config(config())]
+
+    /// Every hour count of a year is a count of hours, not of pump types: none exceeds the
+    /// hours in the year, and the hours held at the safe yield and beyond the curve are hours
+    /// in which a motor pump ran (from the hourly series), with one or two pump types on one
+    /// borehole and a safe yield low enough to hold them (common practice: a year has 8760
+    /// or 8784 hours).
+    #[test]
+    fn hour_counts_count_hours(
+        p in params(),
+        tested_yield in 1.0f64..20.0,
+        two_types in any::<bool>(),
+    ) {
+        let text = yaml_capped(&p, tested_yield, two_types);
+        let s = match load_str(&text, "generated", Path::new(".")) {
+            Ok(l) => l.scheme,
+            Err(e) => panic!("generated scheme did not load:\n{e}\n{text}"),
+        };
+        let d = design(&s, p.tank_m3);
+        let m = Model::new(&s).unwrap();
+        for year in [0, s.info.horizon_years] {
+            let r = m.run_year(&d, year, 0, true);
+            let h = r.hourly.as_ref().unwrap();
+            let hours = h.demand_m3.len() as u32;
+            prop_assert!(hours == 8760 || hours == 8784, "{hours} hours in the year");
+            let motor_hours = h.pump_power_w.iter().filter(|w| **w > 0.0).count() as u32;
+            let a = &r.annual;
+            prop_assert!(a.pump_run_hours <= f64::from(hours) + 1e-9);
+            prop_assert!(f64::from(motor_hours) <= f64::from(hours));
+            for (what, n) in [
+                ("shortfall", a.shortfall_hours),
+                ("longest dry spell", r.longest_dry_spell_hours),
+                ("dry-run stop", r.dry_run_stop_hours),
+                ("yield capped", r.yield_capped_hours),
+                ("beyond curve", r.beyond_curve_hours),
+            ] {
+                prop_assert!(n <= hours, "{what}: {n} h > {hours} h in the year");
+            }
+            for (what, n) in [
+                ("yield capped", r.yield_capped_hours),
+                ("beyond curve", r.beyond_curve_hours),
+            ] {
+                prop_assert!(
+                    n <= motor_hours,
+                    "{what}: {n} h > {motor_hours} h in which a motor pump ran"
+                );
+            }
+            let month_sum: u32 = r.months.iter().map(|t| t.shortfall_hours).sum();
+            prop_assert_eq!(month_sum, a.shortfall_hours);
+        }
+    }
+}
+
+/// Two pump types on one borehole whose safe yield holds them back for most of the year:
+/// the hours held at the safe yield stay within the hours the pumps ran.
+#[test]
+fn two_pump_types_on_one_borehole_count_each_capped_hour_once() {
+    let p = Params {
+        population: 3000,
+        per_capita_l: 40.0,
+        losses_pct: 10.0,
+        tank_m3: 100.0,
+        usable: 0.9,
+        initial: 0.5,
+        start_level: 0.9,
+        static_m: 10.0,
+        head_scale: 1.0,
+        flow_scale: 1.0,
+        units: 2,
+        aquifer: None,
+        drive: Drive::Generator {
+            start: 0,
+            hours: 24,
+        },
+    };
+    let s = load_str(&yaml_capped(&p, 2.0, true), "two types", Path::new("."))
+        .unwrap()
+        .scheme;
+    let r = run(&s, &design(&s, 100.0));
+    let run_hours = r.annual.pump_run_hours;
+    assert!(r.yield_capped_hours > 0, "the safe yield holds the pumps");
+    assert!(
+        f64::from(r.yield_capped_hours) <= run_hours.ceil(),
+        "{} h capped against {run_hours} run hours",
+        r.yield_capped_hours
+    );
+}
+
 /// Hours in which no pump can run take a shorter path through the hourly step (the night
 /// of a solar scheme, the hours outside a generator's window); a run that keeps the hourly
 /// series always takes the full path. The two give the same year bit for bit on every

@@ -149,6 +149,46 @@ fn nesting_beyond_the_limit_is_refused() {
     );
 }
 
+/// Files of just under 1 MiB nested as deeply as their size allows, in every shape the YAML
+/// readers nest: flow sequences and mappings, block sequences on one line, indented block
+/// mappings, and brackets after a syntax error. Before nesting was refused while reading, the
+/// time grew with the square of the depth (64k levels took about 9 s, a whole MiB about 20
+/// minutes). The bound is generous for a debug build on a busy machine; the release figure is
+/// in DEVELOPERS.md.
+#[test]
+fn a_mebibyte_nested_as_deep_as_it_can_be_is_refused_quickly() {
+    const MIB: usize = 1024 * 1024;
+    let fill = |head: &str, open: &str, mid: &str, close: &str| {
+        let n = (MIB - head.len() - mid.len() - 2) / (open.len() + close.len());
+        format!("{head}{}{mid}{}\n", open.repeat(n), close.repeat(n))
+    };
+    let mut indented = String::from("scheme:\n");
+    let mut level = 1;
+    while indented.len() + 2 * level + 8 < MIB {
+        indented.push_str(&" ".repeat(2 * level));
+        indented.push_str(&format!("k{level}:\n"));
+        level += 1;
+    }
+    let cases = [
+        ("flow sequences", fill("scheme: ", "[", "", "]")),
+        ("flow mappings", fill("scheme: ", "{a: ", "1", "}")),
+        (
+            "block sequence on one line",
+            fill("scheme:\n  ", "- ", "x", ""),
+        ),
+        ("indented mappings", indented),
+        (
+            "brackets after a syntax error",
+            fill("a: b: c\nscheme: ", "[", "", ""),
+        ),
+    ];
+    for (what, text) in cases {
+        assert!(text.len() <= MIB, "{what}: {} bytes", text.len());
+        let msg = refused(text.as_bytes(), Duration::from_secs(5));
+        assert!(msg.contains("nested"), "{what}: {msg}");
+    }
+}
+
 #[test]
 fn non_utf8_text_is_refused_with_the_line() {
     let mut bytes = b"scheme:\n  name: caf".to_vec();

@@ -32,7 +32,16 @@ pub fn run_summary_line(r: &RunReport) -> String {
         r.horizon_year.judged_shortfall_hours,
         pct(r.horizon_year.judged_demand_met_fraction),
         r.horizon_year.year,
-        if r.target_met_in_horizon_year {
+        if r.target_met_in_horizon_year
+            && r.horizon_year
+                .years
+                .first()
+                .is_some_and(|y| y.population < 1.0)
+        {
+            // the scheme's warning says how a year without people is judged
+            "met at the horizon, where the projection leaves no people (see the warning)"
+                .to_string()
+        } else if r.target_met_in_horizon_year {
             "met at the horizon".to_string()
         } else {
             match r.first_failing_year {

@@ -69,6 +69,21 @@ pub fn check_run(m: &Model, design: &Design) -> RunReport {
 /// Checks one scheme already loaded: simulates the file's own design when it states one
 /// completely, else evaluates the rules that need no simulation.
 pub fn check_scheme(file: &str, s: &Scheme, rules: &RuleSet) -> FileCheck {
+    check_scheme_located(file, s, rules, None)
+}
+
+/// [`check_scheme`] for a loaded file: a problem found while preparing the run gets the line
+/// of the field it names.
+pub fn check_loaded(file: &str, loaded: &crate::scheme::Loaded, rules: &RuleSet) -> FileCheck {
+    check_scheme_located(file, &loaded.scheme, rules, Some(loaded))
+}
+
+fn check_scheme_located(
+    file: &str,
+    s: &Scheme,
+    rules: &RuleSet,
+    loaded: Option<&crate::scheme::Loaded>,
+) -> FileCheck {
     let mut fc = FileCheck {
         file: file.to_string(),
         valid: true,
@@ -86,6 +101,10 @@ pub fn check_scheme(file: &str, s: &Scheme, rules: &RuleSet) -> FileCheck {
         Ok(design) => {
             let m = match Model::new(s) {
                 Ok(m) => m,
+                Err(e) if loaded.is_some() => {
+                    let err = loaded.expect("loaded").problem(&e.to_string());
+                    return FileCheck::invalid(file, err.problems.clone(), err.to_string());
+                }
                 Err(e) => {
                     let msg = e.to_string();
                     return FileCheck::invalid(
@@ -121,7 +140,7 @@ pub fn check_scheme(file: &str, s: &Scheme, rules: &RuleSet) -> FileCheck {
 pub fn check_file(path: &Path, rules: &RuleSet) -> FileCheck {
     let file = path.display().to_string();
     match crate::scheme::load_file(path) {
-        Ok(loaded) => check_scheme(&file, &loaded.scheme, rules),
+        Ok(loaded) => check_loaded(&file, &loaded, rules),
         Err(e) => FileCheck::invalid(&file, e.problems.clone(), e.to_string()),
     }
 }

@@ -114,19 +114,18 @@ pub fn load_file(path: &Path) -> Result<RuleSet, RulesFileError> {
             message: m,
         }],
     };
-    let meta = std::fs::metadata(path).map_err(|e| whole(format!("cannot read the file: {e}")))?;
-    if meta.is_dir() {
-        return Err(whole(
-            "this is a folder; give the path of a rules file (.yaml)".into(),
-        ));
-    }
-    if meta.len() > MAX_RULES_BYTES as u64 {
-        return Err(whole(format!(
-            "the file is {} bytes; a rules file may be at most {MAX_RULES_BYTES} bytes — is this the right file?",
-            meta.len()
-        )));
-    }
-    let bytes = std::fs::read(path).map_err(|e| whole(format!("cannot read the file: {e}")))?;
+    use crate::input::{ReadError, read_limited};
+    let bytes = read_limited(path, MAX_RULES_BYTES as u64).map_err(|e| {
+        whole(match e {
+            ReadError::NotAFile(kind) => {
+                format!("this is {kind}, not a regular file; give the path of a rules file (.yaml)")
+            }
+            ReadError::TooLarge { .. } => format!(
+                "the file is larger than {MAX_RULES_BYTES} bytes; a rules file may be at most {MAX_RULES_BYTES} bytes — is this the right file?"
+            ),
+            e => e.to_string(),
+        })
+    })?;
     let text = String::from_utf8(bytes)
         .map_err(|_| whole("the file is not UTF-8 text; save it as UTF-8".into()))?;
     from_str(&text, &label)
@@ -147,11 +146,28 @@ pub fn from_str(text: &str, label: &str) -> Result<RuleSet, RulesFileError> {
                 .into(),
         )]));
     }
+    // the structure first: a deeply nested or tagged file is refused before the serde parse
+    let lines = LineMap::build(text);
+    let structure = crate::scheme::load::structure_problems(text, &lines);
+    if !structure.is_empty() {
+        return Err(fail(structure));
+    }
     let value: serde_yaml::Value = serde_yaml::from_str(text).map_err(|e| {
         let loc = e.location().map(|l| (l.line(), l.column()));
-        fail(vec![problem("", loc, format!("not valid YAML: {e}"))])
+        fail(vec![crate::scheme::load::yaml_problem(
+            &e.to_string(),
+            loc.map(|l| l.0),
+            loc.map(|l| l.1),
+        )])
     })?;
-    let lines = LineMap::build(text);
+    if let Some((tag, path)) = crate::scheme::load::first_tagged(&value, String::new()) {
+        let loc = lines.locate(&path);
+        return Err(fail(vec![crate::scheme::load::tag_problem(
+            &tag,
+            loc.map(|l| l.0),
+            loc.map(|l| l.1),
+        )]));
+    }
     if !value.is_mapping() {
         return Err(fail(vec![problem(
             "",
@@ -445,6 +461,28 @@ fn apply(raw: RawRules, lines: &LineMap, problems: &mut Vec<Problem>, label: &st
 mod tests {
     use super::*;
     use approx::assert_relative_eq;
+
+    /// A rules file gets the scheme file's structure checks before the serde parse: deep
+    /// nesting is refused where it passes the limit (quickly), and tags are refused.
+    #[test]
+    fn deep_nesting_and_tags_are_refused_in_rules_files() {
+        let deep = format!("district: {}{}\n", "[".repeat(100_000), "]".repeat(100_000));
+        let t = std::time::Instant::now();
+        let e = from_str(&deep, "deep.yaml").unwrap_err().to_string();
+        assert!(
+            t.elapsed() < std::time::Duration::from_secs(5),
+            "{:?}",
+            t.elapsed()
+        );
+        assert!(
+            e.contains("deep.yaml:1:") && e.contains("nested more than 32"),
+            "{e}"
+        );
+        let e = from_str("district: !!binary SGVsbG8=\n", "tag.yaml")
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("tag.yaml:1:") && e.contains("`!!binary`"), "{e}");
+    }
 
     #[test]
     fn changes_and_additions_apply() {

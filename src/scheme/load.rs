@@ -38,24 +38,79 @@ pub struct LineMap {
     own_nodes: u64,
     /// Nodes once every alias is replaced by the node it names.
     expanded_nodes: u64,
+    /// Where the first collection deeper than [`MAX_NESTING`] opens (line, column); reading
+    /// stops there, so a deeply nested file costs time in proportion to its first levels only.
+    too_deep: Option<(usize, usize)>,
+    /// Tags (`!name`, `!!type`) in the file: (the tag as written, line, column).
+    tags: Vec<(String, usize, usize)>,
+    /// The event parser's refusal: (what it says, line, column).
+    error: Option<(String, usize, usize)>,
 }
 
 impl LineMap {
     /// Builds the map with one pass over the YAML events. Best effort: a file the event parser
     /// refuses gives an empty map (the serde parse reports the syntax error itself).
+    ///
+    /// Reads the events one at a time and stops at the first collection nested deeper than
+    /// [`MAX_NESTING`]: the parsers' cost grows with the square of the depth, so a deeply
+    /// nested file is refused after reading only its first levels (time linear in the file).
+    /// Only the first document is read (a second one is refused by the serde parse).
     pub fn build(text: &str) -> LineMap {
         let mut rec = LineRecorder::default();
         let mut parser = Parser::new_from_str(text);
-        if parser.load(&mut rec, false).is_err() {
-            return LineMap::default();
-        }
+        let mut too_deep = None;
+        let error = loop {
+            match parser.next_token() {
+                Ok((ev, mark)) => {
+                    let end = matches!(ev, Event::StreamEnd | Event::DocumentEnd);
+                    if let Some(tag) = event_tag(&ev) {
+                        let handle = match tag.handle.as_str() {
+                            "tag:yaml.org,2002:" => "!!",
+                            h => h,
+                        };
+                        rec.tags.push((
+                            format!("{handle}{}", tag.suffix),
+                            mark.line(),
+                            mark.col() + 1,
+                        ));
+                    }
+                    rec.on_event(ev, mark);
+                    if rec.depth > MAX_NESTING {
+                        too_deep = Some((mark.line(), mark.col() + 1));
+                        break None;
+                    }
+                    if end {
+                        break None;
+                    }
+                }
+                Err(e) => {
+                    let m = e.marker();
+                    // the event parser's own depth limit
+                    if e.info().contains("recursion limit") {
+                        too_deep = Some((m.line(), m.col() + 1));
+                    }
+                    break Some((e.info().to_string(), m.line(), m.col() + 1));
+                }
+            }
+        };
         LineMap {
-            lines: rec.lines,
-            duplicates: rec.duplicates,
+            parsed: error.is_none() && too_deep.is_none(),
+            lines: if error.is_none() {
+                rec.lines
+            } else {
+                BTreeMap::new()
+            },
+            duplicates: if error.is_none() {
+                rec.duplicates
+            } else {
+                Vec::new()
+            },
             depth: rec.depth,
-            parsed: true,
             own_nodes: rec.own_nodes,
             expanded_nodes: rec.expanded_nodes,
+            too_deep,
+            tags: rec.tags,
+            error,
         }
     }
 
@@ -104,8 +159,19 @@ enum Frame {
     Skip,
 }
 
+/// The tag of a node event, if it has one.
+fn event_tag(ev: &Event) -> Option<&yaml_rust2::parser::Tag> {
+    match ev {
+        Event::Scalar(_, _, _, t) | Event::SequenceStart(_, t) | Event::MappingStart(_, t) => {
+            t.as_ref()
+        }
+        _ => None,
+    }
+}
+
 #[derive(Default)]
 struct LineRecorder {
+    tags: Vec<(String, usize, usize)>,
     stack: Vec<Frame>,
     lines: BTreeMap<String, (usize, usize)>,
     duplicates: Vec<(String, usize, usize)>,
@@ -271,20 +337,18 @@ pub fn read_source(path: &Path) -> Result<Source, SchemeError> {
         file: label.clone(),
         problems: vec![whole_file_problem(m)],
     };
-    let meta = std::fs::metadata(path).map_err(|e| fail(format!("cannot read the file: {e}")))?;
-    if meta.is_dir() {
-        return Err(fail(
-            "this is a folder; give the path of a scheme file (.yaml)".into(),
-        ));
-    }
-    if meta.len() > MAX_FILE_BYTES as u64 {
-        return Err(fail(format!(
-            "the file is {} bytes; a scheme file may be at most {} bytes (1 MiB) — is this the right file?",
-            meta.len(),
-            MAX_FILE_BYTES
-        )));
-    }
-    let bytes = std::fs::read(path).map_err(|e| fail(format!("cannot read the file: {e}")))?;
+    use crate::input::{ReadError, read_limited};
+    let bytes = read_limited(path, MAX_FILE_BYTES as u64).map_err(|e| {
+        fail(match e {
+            ReadError::NotAFile(kind) => {
+                format!("this is {kind}, not a regular file; give the path of a scheme file (.yaml)")
+            }
+            ReadError::TooLarge { .. } => format!(
+                "the file is larger than {MAX_FILE_BYTES} bytes; a scheme file may be at most {MAX_FILE_BYTES} bytes (1 MiB) — is this the right file?"
+            ),
+            e => e.to_string(),
+        })
+    })?;
     let base_dir = path
         .parent()
         .map(|p| p.to_path_buf())
@@ -383,8 +447,9 @@ pub fn parse_raw(src: &Source) -> Result<(RawScheme, LineMap), SchemeError> {
         )]));
     }
     let lines = LineMap::build(&src.text);
-    if let Some(problem) = alias_problem(&src.text, &lines) {
-        return Err(fail(vec![problem]));
+    let structure = structure_problems(&src.text, &lines);
+    if !structure.is_empty() {
+        return Err(fail(structure));
     }
     let mut value: serde_yaml::Value = match serde_yaml::from_str(&src.text) {
         Ok(v) => v,
@@ -407,14 +472,15 @@ pub fn parse_raw(src: &Source) -> Result<(RawScheme, LineMap), SchemeError> {
                 .location()
                 .map(|l| (Some(l.line()), Some(l.column())))
                 .unwrap_or((None, None));
-            return Err(fail(vec![Problem {
-                field: String::new(),
-                line,
-                column,
-                message: format!("not valid YAML: {e}"),
-            }]));
+            return Err(fail(vec![yaml_problem(&e.to_string(), line, column)]));
         }
     };
+    if let Some((tag, path)) = first_tagged(&value, String::new()) {
+        let (line, column) = lines
+            .locate(&path)
+            .map_or((None, None), |(l, c)| (Some(l), Some(c)));
+        return Err(fail(vec![tag_problem(&tag, line, column)]));
+    }
     if lines.max_depth() > MAX_NESTING {
         return Err(fail(vec![whole_file_problem(format!(
             "the YAML is nested {} levels deep; a scheme needs at most a handful (limit {MAX_NESTING})",
@@ -475,8 +541,151 @@ pub fn parse_raw(src: &Source) -> Result<(RawScheme, LineMap), SchemeError> {
     Err(fail(problems))
 }
 
+/// Problems of the YAML's structure found by the event pass, before any serde parse reads the
+/// text: nesting past the limit, tags, aliases that name nothing or expand too far, and deep
+/// brackets in a text the event pass refused. Empty when the serde parse may go ahead.
+pub fn structure_problems(text: &str, lines: &LineMap) -> Vec<Problem> {
+    if let Some((line, column)) = lines.too_deep {
+        return vec![Problem {
+            field: String::new(),
+            line: Some(line),
+            column: Some(column),
+            message: format!(
+                "the YAML is nested more than {MAX_NESTING} levels deep here; a scheme or rules file needs at most a handful of levels — close the brackets or indentation opened above"
+            ),
+        }];
+    }
+    if !lines.tags.is_empty() {
+        return lines
+            .tags
+            .iter()
+            .take(MAX_TAGS_REPORTED)
+            .map(|(tag, line, column)| tag_problem(tag, Some(*line), Some(*column)))
+            .collect();
+    }
+    if let Some(problem) = alias_problem(text, lines) {
+        return vec![problem];
+    }
+    if let Some(problem) = unread_depth_problem(text, lines) {
+        return vec![problem];
+    }
+    Vec::new()
+}
+
+/// Most tags reported from one file (each on its own line).
+const MAX_TAGS_REPORTED: usize = 20;
+
+/// A tag refused: the file format has no use for them, and the YAML readers drop or reinterpret
+/// them silently (`!!binary` text, `!!set` mappings, `!unit` annotations).
+pub(crate) fn tag_problem(tag: &str, line: Option<usize>, column: Option<usize>) -> Problem {
+    Problem {
+        field: String::new(),
+        line,
+        column,
+        message: format!(
+            "the YAML tag `{}` is not allowed in a scheme or rules file; remove it and write the plain value (units go in the key's name, e.g. `_m`)",
+            crate::text::escape_controls(tag)
+        ),
+    }
+}
+
+/// The first node of a parsed value that carries a tag: (tag, field path).
+pub(crate) fn first_tagged(v: &serde_yaml::Value, path: String) -> Option<(String, String)> {
+    match v {
+        serde_yaml::Value::Tagged(t) => Some((t.tag.to_string(), path)),
+        serde_yaml::Value::Sequence(items) => items
+            .iter()
+            .enumerate()
+            .find_map(|(i, x)| first_tagged(x, format!("{path}[{i}]"))),
+        serde_yaml::Value::Mapping(m) => m.iter().find_map(|(k, x)| {
+            let key = match k {
+                serde_yaml::Value::String(s) => s.clone(),
+                _ => "?".into(),
+            };
+            first_tagged(x, join(&path, &key))
+        }),
+        _ => None,
+    }
+}
+
+/// A YAML syntax error from the serde parse, in plain words.
+pub(crate) fn yaml_problem(msg: &str, line: Option<usize>, column: Option<usize>) -> Problem {
+    // "path: invalid type: integer `1e30…` as u128, expected any YAML value at line …"
+    let message = match msg.find("invalid type: integer `") {
+        Some(i) if msg.contains("expected any YAML value") => {
+            let path = msg[..i].trim_end_matches([' ', ':']);
+            let digits = backticked(&msg[i..]).first().copied().unwrap_or("?");
+            let at = if path.is_empty() {
+                String::new()
+            } else {
+                format!("{path}: ")
+            };
+            format!(
+                "{at}the whole number `{digits}` is too large to read (whole numbers stop near 1.8e19; write a larger one as 2.5e20); give a value in the key's allowed range"
+            )
+        }
+        _ => format!("not valid YAML: {msg}"),
+    };
+    Problem {
+        field: String::new(),
+        line,
+        column,
+        message,
+    }
+}
+
+/// When the event parser refused the text, its collections were not counted; before the
+/// serde parse reads it (in time growing with the square of the depth), refuse a text whose
+/// brackets alone open more than [`MAX_NESTING`] levels, reporting the event parser's error.
+fn unread_depth_problem(text: &str, lines: &LineMap) -> Option<Problem> {
+    let (info, line, column) = lines.error.as_ref()?;
+    let mut depth = 0usize;
+    let mut deepest = 0usize;
+    for b in text.bytes() {
+        match b {
+            b'[' | b'{' => {
+                depth += 1;
+                deepest = deepest.max(depth);
+            }
+            b']' | b'}' => depth = depth.saturating_sub(1),
+            _ => {}
+        }
+    }
+    (deepest > MAX_NESTING).then(|| Problem {
+        field: String::new(),
+        line: Some(*line),
+        column: Some(*column),
+        message: format!(
+            "not valid YAML: {info} (and brackets nested up to {deepest} levels deep; a scheme needs at most a handful)"
+        ),
+    })
+}
+
 /// Refuses YAML whose aliases would expand too far, before the serde parse expands them.
 fn alias_problem(text: &str, lines: &LineMap) -> Option<Problem> {
+    if let Some((info, line, column)) = &lines.error
+        && info.contains("unknown anchor")
+    {
+        let name: String = text
+            .lines()
+            .nth(line.saturating_sub(1))
+            .unwrap_or("")
+            .chars()
+            .skip(column.saturating_sub(1))
+            .skip_while(|c| *c == '*')
+            .take_while(|c| !c.is_whitespace() && !matches!(c, ',' | '[' | ']' | '{' | '}'))
+            .take(80)
+            .collect();
+        let name = crate::text::escape_controls(&name);
+        return Some(Problem {
+            field: String::new(),
+            line: Some(*line),
+            column: Some(*column),
+            message: format!(
+                "the alias `*{name}` names no anchor: no `&{name}` comes before it; define the anchor on the value to repeat, or write the value out"
+            ),
+        });
+    }
     if lines.parsed {
         let added = lines.alias_expansion_nodes();
         return (added > MAX_ALIAS_EXPANSION_NODES).then(|| {
@@ -497,9 +706,18 @@ fn alias_problem(text: &str, lines: &LineMap) -> Option<Problem> {
                 ))
     });
     has_alias.then(|| {
-        whole_file_problem(
-            "the YAML could not be read far enough to check its aliases (`*name`); write the values out instead of using aliases".into(),
-        )
+        let (info, line, column) = lines
+            .error
+            .clone()
+            .map_or((String::new(), None, None), |(i, l, c)| (i, Some(l), Some(c)));
+        Problem {
+            field: String::new(),
+            line,
+            column,
+            message: format!(
+                "not valid YAML: {info}; the file uses aliases (`*name`), which are checked only in a file that reads without error — mend this first"
+            ),
+        }
     })
 }
 
@@ -578,19 +796,44 @@ pub fn describe_serde_error(
         m
     } else if msg.contains("untagged enum RawProfile") {
         "give a built-in profile name (communal_taps, yard_taps, flat) or a list of 24 hourly factors".to_string()
+    } else if let Some(rest) = msg.strip_prefix("invalid type: ")
+        && let Some(key) = rest
+            .strip_suffix(", expected field identifier")
+            .and_then(|k| k.split('`').nth(1))
+    {
+        format!(
+            "`{}` is not a key name: keys are words such as `name` or `capacity_m3` (see the file format in README.md)",
+            crate::text::escape_controls(key)
+        )
+    } else if let Some(rest) = msg.strip_prefix("invalid type: string \"")
+        && let Some((text, _)) = rest.split_once('"')
+        && text.trim().parse::<f64>().is_ok_and(|v| v.is_infinite())
+    {
+        format!(
+            "`{text}` is a number too large to hold (beyond about 1.8e308); give a value in the key's allowed range"
+        )
     } else if let Some(rest) = msg.strip_prefix("invalid type: ") {
         format!("wrong kind of value: {}", plain_types(rest))
     } else {
         msg.to_string()
     };
-    let removable = if path.ends_with(']') || path.is_empty() {
+    let removable = if path.ends_with(']') || path.is_empty() || path.ends_with('?') {
         None
     } else {
         Some(path.to_string())
     };
+    // a key that is not a name (a number): name it in the field path and find its line
+    let (field, line, column) = match (path.strip_suffix('?'), message.split('`').nth(1)) {
+        (Some(parent), Some(key)) if message.contains("is not a key name") => {
+            let f = format!("{parent}{key}");
+            let (l, c) = locate(&f).map_or((line, column), |(l, c)| (Some(l), Some(c)));
+            (f, l, c)
+        }
+        _ => (path.to_string(), line, column),
+    };
     (
         Problem {
-            field: path.to_string(),
+            field,
             line,
             column,
             message,

@@ -389,3 +389,21 @@ impl Scheme {
         self.pumps.iter().any(|p| p.drive == DriveKind::Solar)
     }
 }
+
+impl Pump {
+    /// For a motor pump whose highest head at rated speed (the head of its first curve point,
+    /// the shut-off head when the curve starts at zero flow) does not exceed the static lift
+    /// from its borehole's static water level to the tank inlet: (that head, the static lift),
+    /// both m. Such a pump delivers no water at any speed or count of units in parallel (head
+    /// scales with the square of the speed and the speed is at most rated: affinity laws,
+    /// Karassik et al., Pump Handbook, 4th ed., 2008, ch. 2 — from memory).
+    pub fn cannot_lift_m(&self, boreholes: &[Borehole], tank: &Tank) -> Option<(f64, f64)> {
+        let PumpKind::Curve { points, .. } = &self.kind else {
+            return None;
+        };
+        let b = boreholes.get(self.source_index)?;
+        let top_head_m = points.first()?.head_m;
+        let lift_m = tank.inlet_elevation_m - b.ground_elevation_m + b.static_depth_m;
+        (top_head_m <= lift_m).then_some((top_head_m, lift_m))
+    }
+}

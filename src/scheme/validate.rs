@@ -293,6 +293,32 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
         10.0,
         "% per year (village growth rates are rarely outside 0–5 %)",
     ) / 100.0;
+    // a declining projection that empties the village inside the horizon
+    let emptied = (1..=horizon_years).find(|&n| {
+        let p = match growth_method {
+            GrowthMethod::Geometric => {
+                crate::physics::demand::population_geometric(population, growth_rate, f64::from(n))
+            }
+            GrowthMethod::Arithmetic => {
+                crate::physics::demand::population_arithmetic(population, growth_rate, f64::from(n))
+            }
+        };
+        p < 1.0
+    });
+    if let Some(n) = emptied {
+        c.warn(
+            "demand.growth.rate_percent_per_year",
+            format!(
+                "the {} projection at {} % a year leaves fewer than one person from {} on (year {n} of the {horizon_years}-year horizon); such a year has no domestic demand, so it is judged on the other users' demand alone and meets the target whenever that is met (with no other users it always does); check the rate, or shorten the horizon to the years people live there",
+                match growth_method {
+                    GrowthMethod::Geometric => "geometric",
+                    GrowthMethod::Arithmetic => "arithmetic",
+                },
+                fmt_num(growth_rate * 100.0),
+                base_year + n as i32,
+            ),
+        );
+    }
     let per_capita = c.positive(
         "demand.per_capita_l_per_day",
         d.per_capita_l_per_day,
@@ -1198,6 +1224,21 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
         }
     }
     for (i, p) in pumps.iter().enumerate() {
+        if let Some((head_m, lift_m)) = p.cannot_lift_m(&boreholes, &tank) {
+            c.warn(
+                &format!("pumps[{i}].curve[0].head_m"),
+                format!(
+                    "pump `{}` cannot lift water to the tank at any speed: its highest head at rated speed is {} m, the static lift from the water level in `{}` to the tank inlet is {:.1} m; choose a pump whose shut-off head is well above {:.0} m",
+                    p.name,
+                    fmt_num(head_m),
+                    p.source_name,
+                    lift_m,
+                    lift_m
+                ),
+            );
+        }
+    }
+    for (i, p) in pumps.iter().enumerate() {
         let PumpKind::Ram { elevation_m, .. } = p.kind else {
             continue;
         };
@@ -1365,8 +1406,11 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
                 "file" => match &w.file {
                     Some(p) => {
                         let path = base_dir.join(p);
-                        if !path.is_file() {
-                            c.err(&format!("{f}.file"), format!("weather file `{}` not found (paths are relative to the scheme file's folder)", path.display()));
+                        match std::fs::metadata(&path) {
+                            Ok(m) if m.is_file() => {}
+                            Ok(m) => c.err(&format!("{f}.file"), format!("weather file `{}` is {}, not a regular file; give the path of an .epw or .csv file", crate::text::escape_controls(&path.display().to_string()), crate::input::kind_of(&m))),
+                            Err(e) if e.kind() == std::io::ErrorKind::NotFound => c.err(&format!("{f}.file"), format!("weather file `{}` not found (paths are relative to the scheme file's folder)", crate::text::escape_controls(&path.display().to_string()))),
+                            Err(e) => c.err(&format!("{f}.file"), format!("weather file `{}` cannot be read: {}", crate::text::escape_controls(&path.display().to_string()), crate::input::plain_io(&e))),
                         }
                         WeatherMode::File { path }
                     }
@@ -1392,6 +1436,43 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
         }
     };
     let uses_solar = pumps.iter().any(|p| p.drive == DriveKind::Solar);
+    // Checks the engine would otherwise meet only when preparing a run, made here so they are
+    // reported with their line and beside every other problem of the file.
+    if uses_solar {
+        match (&weather.mode, &solar) {
+            (WeatherMode::Synthetic { .. }, Some(sol)) => {
+                let kt = crate::simulate::inputs::monthly_mean_clearness(
+                    latitude_deg.to_radians(),
+                    &sol.irradiation_j_per_m2_day,
+                );
+                let (lo, hi) = (
+                    crate::weather::MONTHLY_MEAN_KT_MIN,
+                    crate::weather::MONTHLY_MEAN_KT_MAX,
+                );
+                for (m, k) in kt.iter().enumerate() {
+                    let field = format!("drives.solar.irradiation_kwh_per_m2_day[{m}]");
+                    let reported = c.problems.iter().any(|p| p.field == field);
+                    if !reported && !(lo..hi).contains(k) {
+                        c.err(
+                            &field,
+                            format!(
+                                "{:.2} kWh/m²/day is {:.0} % of the sunlight reaching the top of the atmosphere at this latitude in {}; a monthly mean clearness index must lie between {lo} and {hi} — check the value and its unit (kWh/m² per day on the horizontal)",
+                                sol.irradiation_j_per_m2_day[m] / 3.6e6,
+                                k * 100.0,
+                                crate::weather::MONTH_NAMES[m],
+                            ),
+                        );
+                    }
+                }
+            }
+            (WeatherMode::File { path }, _) if path.is_file() => {
+                if let Err(e) = crate::weather::read_weather_file(path) {
+                    c.err("weather.file", e.to_string());
+                }
+            }
+            _ => {}
+        }
+    }
     if !uses_solar && !matches!(weather.mode, WeatherMode::MeanDays) {
         c.warn(
             "weather",

@@ -165,8 +165,13 @@ pub struct YearResult {
     /// Least margin between the dynamic water level and the intake's limit while pumping, m.
     pub drawdown_margin_m: Option<f64>,
     pub deepest_dynamic_level_m: Option<f64>,
+    /// Hours in which dry-run protection stopped a pump (each hour once).
     pub dry_run_stop_hours: u32,
+    /// Hours in which the pumps ran held at a borehole's safe yield (each hour once, however
+    /// many pump types share the borehole; part of the hours the pumps ran).
     pub yield_capped_hours: u32,
+    /// Hours in which a pump ran beyond its tabulated curve (each hour once; part of the
+    /// hours the pumps ran).
     pub beyond_curve_hours: u32,
     /// Tank level at the start and the end of the year, m³ (the periodic state: equal within
     /// the tolerance of [`STEADY_TOLERANCE`] when `steady`).
@@ -1505,6 +1510,10 @@ impl<'a> State<'a> {
         let mut head = 0.0;
         let mut speed = 0.0;
         let mut depth_rec: Option<f64> = None;
+        // What happened this hour, counted once per hour however many pump types share it:
+        // a pump stopped by dry-run protection, a pump that ran held at the safe yield, a pump
+        // that ran beyond its tabulated curve.
+        let (mut dry_now, mut capped_now, mut beyond_now) = (false, false, false);
         if self.pumps_on {
             for am in &self.motors {
                 let p = &s.pumps[am.i];
@@ -1522,7 +1531,7 @@ impl<'a> State<'a> {
                 }
                 let s_past = past_drawdown(m, b, &self.q_hist[b], self.hist_pos, self.day_total[b]);
                 if s_past > t.max_offset_m {
-                    self.dry_run_hours += 1;
+                    dry_now = true;
                     continue;
                 }
                 let pool = match p.drive {
@@ -1568,8 +1577,8 @@ impl<'a> State<'a> {
                     continue;
                 }
                 // safe-yield cap
-                if pt.flow_m3_per_s > cap[b] {
-                    self.capped_hours += 1;
+                let capped = pt.flow_m3_per_s > cap[b];
+                if capped {
                     let q_cap = cap[b].max(0.0);
                     if q_cap <= 1e-12 {
                         continue;
@@ -1590,16 +1599,15 @@ impl<'a> State<'a> {
                     bore.static_depth_m + s_past + t.system.well_drawdown_m(pt.flow_m3_per_s);
                 let limit = bore.intake_depth_m - bore.submergence_margin_m;
                 if depth > limit {
-                    self.dry_run_hours += 1;
+                    dry_now = true;
                     continue;
                 }
+                capped_now |= capped;
                 let margin = limit - depth;
                 self.min_margin = Some(self.min_margin.map_or(margin, |x: f64| x.min(margin)));
                 self.deepest = Some(self.deepest.map_or(depth, |x: f64| x.max(depth)));
                 depth_rec = Some(depth);
-                if pt.beyond_table {
-                    self.beyond_hours += 1;
-                }
+                beyond_now |= pt.beyond_table;
                 *pool -= pt.power_w;
                 match p.drive {
                     DriveKind::Solar => p_solar += pt.power_w,
@@ -1689,6 +1697,11 @@ impl<'a> State<'a> {
             self.today[b] += mean_q * 3600.0;
         }
 
+        // the capped and beyond-curve hours are hours the pumps ran (part of the run hours)
+        let ran = run_fraction > 0.0;
+        self.dry_run_hours += u32::from(dry_now);
+        self.capped_hours += u32::from(capped_now && ran);
+        self.beyond_hours += u32::from(beyond_now && ran);
         let (shortfall, short_hour) = self.close_level(month, v);
         let v = self.v;
         let motor_used = motor * run_fraction;

@@ -286,7 +286,7 @@ pub fn pump_sets(s: &Scheme) -> Result<Vec<Vec<u32>>, Error> {
     }
     if total > MAX_PUMP_SETS {
         return Err(Error::Input(format!(
-            "the pump ranges give {total} combinations of units; at most {MAX_PUMP_SETS} are searched — lower some pumps[].max_units"
+            "pumps: the pump ranges give {total} combinations of units; at most {MAX_PUMP_SETS} are searched — lower some pumps[].max_units"
         )));
     }
     let mut sets = vec![Vec::new()];
@@ -1213,9 +1213,36 @@ fn diagnose(m: &Model, d: &Design, r: &RunReport, which: &str) -> Unreachable {
             .iter()
             .map(|st| st.flow_m3_per_s * 3600.0 * 24.0 * 365.0)
             .sum::<f64>();
-    let limited_by = if y.yield_capped_hours > 100
-        || (safe_yield_m3 > 0.0 && safe_yield_m3 < demand)
-    {
+    // installed pump types that can never reach the tank (see `Pump::cannot_lift_m`)
+    let installed: Vec<&crate::scheme::Pump> = s
+        .pumps
+        .iter()
+        .zip(&d.units)
+        .filter(|(_, n)| **n > 0)
+        .map(|(p, _)| p)
+        .collect();
+    let short_pumps: Vec<String> = installed
+        .iter()
+        .filter_map(|p| {
+            p.cannot_lift_m(&s.boreholes, &s.tank).map(|(h, l)| {
+                format!(
+                    "`{}` (highest head {h:.1} m against a static lift of {l:.1} m)",
+                    p.name
+                )
+            })
+        })
+        .collect();
+    let limited_by = if !short_pumps.is_empty() && short_pumps.len() == installed.len() {
+        format!(
+            "the pump: {} cannot lift water to the tank at any speed; more array, generator hours or units do not help — choose a pump with more head",
+            short_pumps.join(", ")
+        )
+    } else if !short_pumps.is_empty() {
+        format!(
+            "the pumps: {} cannot lift water to the tank at any speed and add nothing; the other pumps alone do not meet the target",
+            short_pumps.join(", ")
+        )
+    } else if y.yield_capped_hours > 100 || (safe_yield_m3 > 0.0 && safe_yield_m3 < demand) {
         format!(
             "source yield: the pumps were held at the safe yield for {} hours of the horizon year; the sources' safe yield is {:.0} m³/year against a demand of {:.0} m³",
             y.yield_capped_hours, safe_yield_m3, demand

@@ -29,7 +29,7 @@ pub enum WeatherError {
     #[error("asked for 0 synthetic years; ask for at least 1")]
     NoYears,
     /// The file could not be opened or read.
-    #[error("cannot read weather file {file}: {source}; check the path and that it is a text file")]
+    #[error("cannot read weather file {file}: {}; check the path and that it is a text file", crate::input::plain_io(.source))]
     Io {
         /// The file.
         file: PathBuf,
@@ -37,16 +37,24 @@ pub enum WeatherError {
         #[source]
         source: std::io::Error,
     },
-    /// The file is larger than the 50 MB limit.
+    /// The path names a folder, a pipe, a device or a socket.
     #[error(
-        "weather file {file} is {bytes} bytes, larger than the 50 MB limit; an hourly file for \
+        "weather file {file} is {kind}, not a regular file; give the path of an .epw or .csv file"
+    )]
+    NotAFile {
+        /// The file.
+        file: String,
+        /// What it is, in words.
+        kind: &'static str,
+    },
+    /// The file is larger than the 50 MiB limit.
+    #[error(
+        "weather file {file} is larger than the 50 MiB limit (52428800 bytes); an hourly file for \
          30 years is about 30 MB, so cut it to whole years of hourly rows"
     )]
     FileTooLarge {
         /// The file.
         file: String,
-        /// Its size in bytes.
-        bytes: u64,
     },
     /// The extension is neither `.epw` nor `.csv`.
     #[error(

@@ -47,7 +47,7 @@ pub const MONTH_NAMES: [&str; 12] = [
     "November",
     "December",
 ];
-/// Largest weather file accepted, in bytes (50 MB).
+/// Largest weather file accepted, in bytes (50 MiB).
 pub const MAX_WEATHER_FILE_BYTES: u64 = 50 * 1024 * 1024;
 
 /// Month (0 = January … 11 = December) of a 0-based day of the 365-day year.
@@ -89,7 +89,8 @@ pub struct HourlyWeather {
 /// Read an hourly weather file, choosing the format by extension: `.epw` → [`parse_epw`],
 /// `.csv` → [`parse_csv`] (case-insensitive).
 ///
-/// Files larger than [`MAX_WEATHER_FILE_BYTES`] (50 MB) are refused before reading.
+/// Files larger than [`MAX_WEATHER_FILE_BYTES`] (50 MiB) are refused (at most that much plus
+/// one byte is read), and a path that is not a regular file is refused and named.
 /// Source: formats as documented on the two parsers. Validity: text files, hourly rows.
 pub fn read_weather_file(path: &Path) -> Result<HourlyWeather, WeatherError> {
     let ext = path
@@ -110,11 +111,25 @@ pub fn read_weather_file(path: &Path) -> Result<HourlyWeather, WeatherError> {
         file: path.to_path_buf(),
         source,
     };
-    let bytes = std::fs::metadata(path).map_err(io_err)?.len();
-    if bytes > MAX_WEATHER_FILE_BYTES {
-        return Err(WeatherError::FileTooLarge { file: label, bytes });
-    }
-    let text = std::fs::read_to_string(path).map_err(io_err)?;
+    let bytes = match crate::input::read_limited(path, MAX_WEATHER_FILE_BYTES) {
+        Ok(b) => b,
+        Err(crate::input::ReadError::NotAFile(kind)) => {
+            return Err(WeatherError::NotAFile { file: label, kind });
+        }
+        Err(crate::input::ReadError::TooLarge { .. }) => {
+            return Err(WeatherError::FileTooLarge { file: label });
+        }
+        Err(crate::input::ReadError::Io(e)) => return Err(io_err(e)),
+    };
+    let text = String::from_utf8(bytes).map_err(|e| {
+        io_err(std::io::Error::new(
+            std::io::ErrorKind::InvalidData,
+            format!(
+                "not UTF-8 text (invalid byte at offset {})",
+                e.utf8_error().valid_up_to()
+            ),
+        ))
+    })?;
     parse(&text, &label)
 }
 
@@ -124,7 +139,6 @@ fn check_text_size(text: &str, file_label: &str) -> Result<(), WeatherError> {
     if bytes > MAX_WEATHER_FILE_BYTES {
         return Err(WeatherError::FileTooLarge {
             file: file_label.to_string(),
-            bytes,
         });
     }
     Ok(())
@@ -358,6 +372,9 @@ mod tests {
         f.set_len(MAX_WEATHER_FILE_BYTES + 1).unwrap();
         let e = read_weather_file(&path).unwrap_err();
         assert!(matches!(e, WeatherError::FileTooLarge { .. }));
-        assert!(e.to_string().contains("50 MB"), "{e}");
+        assert!(
+            e.to_string().contains("50 MiB limit (52428800 bytes)"),
+            "{e}"
+        );
     }
 }

@@ -18,6 +18,10 @@ pub use content::{
 pub use layout::{LaidOutDocument, Page, Primitive, TextRun, layout};
 pub use render::render;
 
+/// Largest plan PDF `verify` reads, in bytes (64 MiB): a plan embeds its scheme (at most
+/// 1 MiB) and its weather file (at most 50 MiB) beside a few pages.
+pub const MAX_PLAN_PDF_BYTES: u64 = 64 * 1024 * 1024;
+
 /// Document information written to the PDF info dictionary.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct Meta {
