@@ -477,3 +477,26 @@ fn weather_file_travels_in_the_pdf_and_verify_uses_it() {
     let (code, out, err) = verify(&pdf);
     assert_eq!(code, 0, "{out}{err}");
 }
+
+/// When the file states a design, page 1 shows it beside the recommended one with the rules
+/// each fails, so a reader sees what changed.
+#[test]
+fn page_one_shows_the_proposed_design_beside_the_recommended_one() {
+    let dir = tempfile::tempdir().unwrap();
+    let src = sample("tolomba-market-generator.yaml");
+    let pdf = dir.path().join("t.pdf");
+    let (code, out, err) = plan(&[src.as_os_str(), "-o".as_ref(), pdf.as_os_str()]);
+    assert_eq!(code, 0, "{out}{err}");
+    let page1 = flat(&RustReader.page_texts(&pdf)[0]);
+    let scheme = tapplan::scheme::load_file(&src).unwrap().scheme;
+    let file_design = tapplan::simulate::Design::from_scheme(&scheme).unwrap();
+    for needle in [
+        "proposed in the file",
+        "recommended",
+        "rules failed",
+        "water per person",
+        &file_design.describe(&scheme),
+    ] {
+        assert!(page1.contains(needle), "page 1 lacks {needle:?}:\n{page1}");
+    }
+}

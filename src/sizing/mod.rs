@@ -1146,6 +1146,51 @@ pub fn complete_horizon(m: &Model, plan: &mut Plan) {
     plan.stats.extra_passes = m.extra_passes_run();
 }
 
+/// One design summed up for the side-by-side comparison of the file's proposed design and
+/// the recommended one.
+#[derive(Debug, Clone, Serialize)]
+pub struct DesignSummary {
+    pub design: Design,
+    pub design_text: String,
+    pub judged_shortfall_hours: f64,
+    pub judged_demand_met_fraction: f64,
+    /// Litres per person per day delivered in the lower of the first and horizon judged year.
+    pub litres_per_person_day: f64,
+    pub meets_target: bool,
+    pub capital: f64,
+    pub present_worth: f64,
+    pub cost_per_m3: Option<f64>,
+    pub verdict: Verdict,
+}
+
+/// Sums up one design under the rules in force: its run report (base and horizon years),
+/// its cost and the rules' verdict.
+pub fn summarise_design(m: &Model, d: &Design, rules: &RuleSet) -> DesignSummary {
+    let s = &m.scheme;
+    let report = simulate::run_report_with(m, d, simulate::HorizonYears::Ends);
+    let median_w = median_weather(&report.horizon_year);
+    let c = cost_of(m, d, &Scenario::default(), median_w, 1.0);
+    let ev = evaluated(m, d, &report.horizon_year, c, report.first_failing_year);
+    let judged = |e: &Ensemble| {
+        e.years
+            .get(e.representative)
+            .map_or(f64::INFINITY, |y| y.delivered_m3_per_person_day)
+    };
+    let lpd = judged(&report.first_year).min(judged(&report.horizon_year)) * 1000.0;
+    DesignSummary {
+        design: d.clone(),
+        design_text: d.describe(s),
+        judged_shortfall_hours: ev.judged_shortfall_hours,
+        judged_demand_met_fraction: ev.judged_demand_met_fraction,
+        litres_per_person_day: if lpd.is_finite() { lpd } else { 0.0 },
+        meets_target: ev.meets_target,
+        capital: ev.cost.capital,
+        present_worth: ev.cost.npv,
+        cost_per_m3: ev.cost.levelised_per_m3,
+        verdict: Verdict::of(&crate::rules::evaluate(s, &report, rules)),
+    }
+}
+
 /// Evaluates one given design (no search) into a `Plan`: `chosen` is the design when it meets
 /// the target in the horizon year, otherwise `unreachable` says what limits it. The design
 /// itself is the only entry of `alternatives` (so its cost is reported either way); the

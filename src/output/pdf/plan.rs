@@ -200,6 +200,10 @@ pub struct PlanInputs<'a> {
     /// Pumping-test pages of the boreholes whose test file the scheme names (blocks for the
     /// source section, and the test records to attach).
     pub pumping_tests: &'a crate::output::pumptest::PlanPages,
+    /// The file's proposed design and the recommended one, summed up side by side (None when
+    /// the file states no complete design or the plan shows a design given on the command
+    /// line).
+    pub comparison: Option<[crate::sizing::DesignSummary; 2]>,
 }
 
 /// SHA-256 of bytes, lower-case hex.
@@ -611,6 +615,12 @@ fn page_one(inp: &PlanInputs, b: &mut Vec<Block>) {
         ));
     }
     b.push(para(verdict_text));
+    if let Some(c) = &inp.comparison {
+        b.push(proposed_beside_recommended(
+            c,
+            &inp.model.scheme.info.currency,
+        ));
+    }
     b.push(para(
         "Caution: a planning aid, not a certified design. Test the water before use, protect the source, have elevated tanks designed by a structural engineer and the electrics installed by qualified people; local codes and licensed practice prevail (see Cautions).",
     ));
@@ -624,6 +634,66 @@ fn page_one(inp: &PlanInputs, b: &mut Vec<Block>) {
             "one simulated year (the supply does not depend on the weather)".to_string()
         }
     )));
+}
+
+/// The file's proposed design beside the recommended one: the figures an officer compares.
+fn proposed_beside_recommended(c: &[crate::sizing::DesignSummary; 2], cur: &str) -> Block {
+    let [prop, rec] = c;
+    let same = prop.design == rec.design;
+    let row = |name: &str, f: &dyn Fn(&crate::sizing::DesignSummary) -> String| {
+        vec![name.to_string(), f(prop), f(rec)]
+    };
+    let rules = |d: &crate::sizing::DesignSummary| {
+        if d.verdict.failing_rules.is_empty() {
+            "none".to_string()
+        } else {
+            d.verdict.failing_rules.join(", ")
+        }
+    };
+    let rows = vec![
+        row("design", &|d| d.design_text.clone()),
+        row("shortfall hours, horizon year (h)", &|d| {
+            format!("{:.0}", d.judged_shortfall_hours)
+        }),
+        row("demand met, horizon year (%)", &|d| {
+            pct(d.judged_demand_met_fraction)
+        }),
+        row("water per person (L/person/day)", &|d| {
+            format!("{:.1}", d.litres_per_person_day)
+        }),
+        row("meets the target", &|d| {
+            if d.meets_target { "yes" } else { "no" }.to_string()
+        }),
+        row(&format!("capital ({cur})"), &|d| grouped(d.capital)),
+        row(&format!("present worth ({cur})"), &|d| {
+            grouped(d.present_worth)
+        }),
+        row(&format!("cost per m³ ({cur}/m³)"), &|d| {
+            d.cost_per_m3.map_or("–".into(), |v| format!("{v:.2}"))
+        }),
+        row("rules failed", &rules),
+        row("rules that warn", &|d| {
+            if d.verdict.warning_rules.is_empty() {
+                "none".to_string()
+            } else {
+                d.verdict.warning_rules.join(", ")
+            }
+        }),
+    ];
+    let caption = if same {
+        "The design in the file and the recommended design (the same design)"
+    } else {
+        "The design in the file beside the recommended design"
+    };
+    weighted(
+        table(
+            caption,
+            &["", "proposed in the file", "recommended"],
+            rows,
+            &[Align::Left, Align::Right, Align::Right],
+        ),
+        &[1.3, 1.0, 1.0],
+    )
 }
 
 fn typical_day_chart(inp: &PlanInputs) -> Block {
@@ -1714,8 +1784,13 @@ pub fn run_plan(
             let d = crate::simulate::resolve_design(s, o).map_err(Error::Input)?;
             crate::sizing::evaluate_fixed(&m, &d)?
         }
-        None => crate::sizing::size_with_model(&m)?,
+        None => crate::sizing::size_with_rules(&m, rules)?,
     };
+    plan.verdict = Some(crate::sizing::Verdict::of(&crate::rules::evaluate(
+        s,
+        &plan.report,
+        rules,
+    )));
     // the plan shows the year-by-year table (a fixed design's report already has it)
     crate::sizing::complete_horizon(&m, &mut plan);
     let detail = m.run_year(
@@ -1753,6 +1828,13 @@ pub fn run_plan(
         })
         .collect();
     let pumping_tests = crate::output::pumptest::plan_pages(loaded)?;
+    let comparison = match (overrides, crate::simulate::Design::from_scheme(s)) {
+        (None, Ok(file_design)) => Some([
+            crate::sizing::summarise_design(&m, &file_design, rules),
+            crate::sizing::summarise_design(&m, &plan.report.design, rules),
+        ]),
+        _ => None,
+    };
     let record = overrides.map(|o| OverridesRecord {
         tank_m3: o.tank_m3,
         pumps: o.pumps.clone(),
@@ -1770,6 +1852,7 @@ pub fn run_plan(
         overrides: record,
         checks: &checks,
         pumping_tests: &pumping_tests,
+        comparison,
     };
     let pdf = plan_pdf(&inp).map_err(|e| Error::Input(format!("could not make the PDF: {e}")))?;
     Ok(PlanRun {
