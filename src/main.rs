@@ -349,6 +349,9 @@ fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {
             "{}",
             table::annual_table(&r.year, r.storage_days_of_average_demand)
         );
+        if !r.year.boreholes.is_empty() {
+            outln!("{}", table::borehole_table(&r.year));
+        }
         outln!("{}", table::monthly_table(&r.year));
         if r.first_year.years_run > 1 {
             outln!("{}", table::ensemble_table(&r.first_year, &r.horizon_year));

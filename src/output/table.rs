@@ -62,6 +62,30 @@ fn judged_name(j: crate::scheme::JudgedOn, n: usize) -> &'static str {
     }
 }
 
+/// Each borehole's figures of one year.
+pub fn borehole_table(y: &YearResult) -> Table {
+    let mut t = new_table(&[
+        "borehole",
+        "pumped (m³)",
+        "deepest level (m below ground)",
+        "least margin (m)",
+        "hours at safe yield (h)",
+        "dry-run stops (h)",
+    ]);
+    let opt = |v: Option<f64>| v.map_or("-".to_string(), |v| format!("{v:.1}"));
+    for b in &y.boreholes {
+        t.add_row(vec![
+            b.name.clone(),
+            format!("{:.0}", b.pumped_m3),
+            opt(b.deepest_dynamic_level_m),
+            opt(b.drawdown_margin_m),
+            b.yield_capped_hours.to_string(),
+            b.dry_run_stop_hours.to_string(),
+        ]);
+    }
+    t
+}
+
 /// Annual figures of one year.
 pub fn annual_table(y: &YearResult, storage_days: f64) -> Table {
     let a = &y.annual;

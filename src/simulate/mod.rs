@@ -173,6 +173,9 @@ pub struct YearResult {
     /// Hours in which a pump ran beyond its tabulated curve (each hour once; part of the
     /// hours the pumps ran).
     pub beyond_curve_hours: u32,
+    /// The same figures per borehole (in file order); the scheme's figures above are their
+    /// sum (pumped), extremes (deepest level, least margin) and union (hours).
+    pub boreholes: Vec<BoreholeYear>,
     /// Tank level at the start and the end of the year, m³ (the periodic state: equal within
     /// the tolerance of [`STEADY_TOLERANCE`] when `steady`).
     pub start_level_m3: f64,
@@ -188,6 +191,22 @@ pub struct YearResult {
     pub aborted: bool,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub hourly: Option<Hourly>,
+}
+
+/// One borehole's figures over a year.
+#[derive(Debug, Clone, Default, Serialize)]
+pub struct BoreholeYear {
+    pub name: String,
+    /// Water drawn from it by hand and motor pumps, m³.
+    pub pumped_m3: f64,
+    /// Deepest dynamic water level while a motor pump ran, m below ground.
+    pub deepest_dynamic_level_m: Option<f64>,
+    /// Least margin between that level and the intake's limit, m.
+    pub drawdown_margin_m: Option<f64>,
+    /// Hours in which a motor pump on it ran held at its safe yield.
+    pub yield_capped_hours: u32,
+    /// Hours in which dry-run protection stopped a motor pump on it.
+    pub dry_run_stop_hours: u32,
 }
 
 /// Reliability over the weather years of one design and one demand year.
@@ -855,6 +874,7 @@ impl Model {
             dry_run_stop_hours: st.dry_run_hours,
             yield_capped_hours: st.capped_hours,
             beyond_curve_hours: st.beyond_hours,
+            boreholes: st.bh_year.clone(),
             start_level_m3,
             end_level_m3: st.v,
             storage_change_m3: st.v - start_level_m3,
@@ -1166,6 +1186,10 @@ struct State<'a> {
     low_m3: [f64; 12],
     /// Scratch per borehole, reused every hour.
     cap: Vec<f64>,
+    /// Per borehole: the year's figures, and this hour's dry-run stop and safe-yield cap.
+    bh_year: Vec<BoreholeYear>,
+    bh_dry: Vec<bool>,
+    bh_capped: Vec<bool>,
     bh_hand: Vec<f64>,
     bh_motor: Vec<f64>,
 }
@@ -1257,6 +1281,17 @@ impl<'a> State<'a> {
             beyond_hours: 0,
             yield_factor: 1.0,
             cap: vec![0.0; nb],
+            bh_year: m
+                .scheme
+                .boreholes
+                .iter()
+                .map(|b| BoreholeYear {
+                    name: b.name.clone(),
+                    ..Default::default()
+                })
+                .collect(),
+            bh_dry: vec![false; nb],
+            bh_capped: vec![false; nb],
             bh_hand: vec![0.0; nb],
             bh_motor: vec![0.0; nb],
         }
@@ -1323,6 +1358,12 @@ impl<'a> State<'a> {
         self.longest_spell = 0;
         self.min_margin = None;
         self.deepest = None;
+        for y in &mut self.bh_year {
+            *y = BoreholeYear {
+                name: std::mem::take(&mut y.name),
+                ..Default::default()
+            };
+        }
         self.dry_run_hours = 0;
         self.capped_hours = 0;
         self.beyond_hours = 0;
@@ -1459,6 +1500,8 @@ impl<'a> State<'a> {
         // one loop (a `fill` of these short vectors would be a library call every hour)
         for (b, y) in m.safe_yield.iter().enumerate() {
             cap[b] = y * self.yield_factor;
+            self.bh_dry[b] = false;
+            self.bh_capped[b] = false;
             bh_hand[b] = 0.0;
             bh_motor[b] = 0.0;
         }
@@ -1600,12 +1643,18 @@ impl<'a> State<'a> {
                 let limit = bore.intake_depth_m - bore.submergence_margin_m;
                 if depth > limit {
                     dry_now = true;
+                    self.bh_dry[b] = true;
                     continue;
                 }
                 capped_now |= capped;
+                self.bh_capped[b] |= capped;
                 let margin = limit - depth;
                 self.min_margin = Some(self.min_margin.map_or(margin, |x: f64| x.min(margin)));
                 self.deepest = Some(self.deepest.map_or(depth, |x: f64| x.max(depth)));
+                let by = &mut self.bh_year[b];
+                by.drawdown_margin_m = Some(by.drawdown_margin_m.map_or(margin, |x| x.min(margin)));
+                by.deepest_dynamic_level_m =
+                    Some(by.deepest_dynamic_level_m.map_or(depth, |x| x.max(depth)));
                 depth_rec = Some(depth);
                 beyond_now |= pt.beyond_table;
                 *pool -= pt.power_w;
@@ -1699,6 +1748,12 @@ impl<'a> State<'a> {
 
         // the capped and beyond-curve hours are hours the pumps ran (part of the run hours)
         let ran = run_fraction > 0.0;
+        for b in 0..nb {
+            let by = &mut self.bh_year[b];
+            by.pumped_m3 += (bh_hand[b] + bh_motor[b] * run_fraction) * 3600.0;
+            by.dry_run_stop_hours += u32::from(self.bh_dry[b]);
+            by.yield_capped_hours += u32::from(self.bh_capped[b] && ran && bh_motor[b] > 0.0);
+        }
         self.dry_run_hours += u32::from(dry_now);
         self.capped_hours += u32::from(capped_now && ran);
         self.beyond_hours += u32::from(beyond_now && ran);

@@ -932,6 +932,8 @@ fn source_section(inp: &PlanInputs, b: &mut Vec<Block>) {
     // boreholes: yield, drawdown at the operating flow, intake
     let mut any_curve = false;
     for (bi, bh) in s.boreholes.iter().enumerate() {
+        // this borehole's own figures of the judged horizon year
+        let by = hy.boreholes.get(bi).cloned().unwrap_or_default();
         let mut rows = vec![
             vec![
                 "rest (static) water level".to_string(),
@@ -982,7 +984,7 @@ fn source_section(inp: &PlanInputs, b: &mut Vec<Block>) {
             if n == 0 {
                 continue;
             }
-            let Some(c) = m.pump_system_curves(pi, n, hy.deepest_dynamic_level_m, 2) else {
+            let Some(c) = m.pump_system_curves(pi, n, by.deepest_dynamic_level_m, 2) else {
                 continue;
             };
             if let Some((q, h)) = c.operating_no_past {
@@ -1012,20 +1014,24 @@ fn source_section(inp: &PlanInputs, b: &mut Vec<Block>) {
                 }
             }
         }
-        if let Some(dl) = hy.deepest_dynamic_level_m {
+        rows.push(vec![
+            format!("water drawn from it in {} (simulated)", hy.year),
+            format!("{} m³", grouped(by.pumped_m3)),
+        ]);
+        if let Some(dl) = by.deepest_dynamic_level_m {
             rows.push(vec![
                 format!("deepest pumping level in {} (simulated)", hy.year),
                 format!(
                     "{:.1} m below ground; least margin to the limit {}",
                     dl,
-                    hy.drawdown_margin_m
+                    by.drawdown_margin_m
                         .map_or("–".into(), |v| format!("{v:.1} m"))
                 ),
             ]);
         }
         rows.push(vec![
             format!("hours held at safe yield; dry-run stops ({})", hy.year),
-            format!("{} h; {} h", hy.yield_capped_hours, hy.dry_run_stop_hours),
+            format!("{} h; {} h", by.yield_capped_hours, by.dry_run_stop_hours),
         ]);
         b.push(weighted(
             table(
