@@ -509,3 +509,33 @@ fn search_finds_the_analytic_window_storage() {
         );
     }
 }
+
+/// The repair case, analytic: with the only pump unit out of service there is no supply at
+/// all, and demand is flat over every hour, so every hour of the repair period is short: 24
+/// hours a day (mass balance with no inflow, common practice). The period's length comes from
+/// `targets.repair_days`.
+#[test]
+fn repair_case_with_the_only_unit_out_is_short_every_hour() {
+    let q_h = ab_operating_flow_m3_per_h();
+    let flat = vec!["1"; 24].join(", ");
+    let daily_m3 = q_h * 8.0 * (1.0 - BALANCE_MARGIN);
+    for (days, yaml_days) in [(7u32, None), (3, Some(3))] {
+        let mut yaml = ab_yaml(daily_m3, &flat, 4, 12, 60.0);
+        if let Some(d) = yaml_days {
+            yaml = yaml.replace(
+                "  max_shortfall_hours_per_year: 0\n",
+                &format!("  max_shortfall_hours_per_year: 0\n  repair_days: {d}\n"),
+            );
+        }
+        let s = load(&yaml);
+        let m = Model::new(&s).unwrap();
+        let d = Design::from_scheme(&s).unwrap();
+        let r = tapplan::simulate::run_report(&m, &d);
+        assert_eq!(r.repair.len(), 1);
+        let c = &r.repair[0];
+        assert_eq!(c.units_left, 0);
+        assert_eq!(c.days, days);
+        assert_eq!(c.shortfall_hours, days * 24, "{c:?}");
+        assert!(!c.carried);
+    }
+}

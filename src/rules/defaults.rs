@@ -279,6 +279,18 @@ pub fn default_rules() -> Vec<Rule> {
             reference: common("a village tank holds at least half a day's demand (districts often ask for more; set it in the district rules file)."),
         },
         Spec {
+            id: "repair-cover",
+            description: "With one unit of a pump type out for repair (targets.repair_days, in the month of least margin), the tank and the remaining units carry the supply",
+            quantity: Q::RepairShortfallHours,
+            check: AtMost,
+            limit: Some(0.0),
+            scheme_target: false,
+            relative_percent: None,
+            severity: Warn,
+            source: "common practice",
+            reference: common("a supply should keep running while one pump is repaired (the \"N − 1\" rule of thumb for standby pumps); the repair is placed in the month whose lowest tank level is the least, with one unit fewer of each pump type in turn."),
+        },
+        Spec {
             id: "declared-shortfall",
             description: "Shortfall hours the scheme declares, against the recomputed base-year figure",
             quantity: Q::DeclaredShortfallDifference,

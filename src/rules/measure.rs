@@ -52,6 +52,9 @@ pub enum Quantity {
     FlowOverBestEfficiency,
     /// Usable storage over the horizon year's average daily supplied demand, days.
     StorageDays,
+    /// Shortfall hours inside the repair period with one unit of a pump type out of service
+    /// (the worst pump type; see `simulate::repair_cases`), h.
+    RepairShortfallHours,
     /// |declared − recomputed| judged base-year shortfall hours, h/year.
     DeclaredShortfallDifference,
     /// |declared − recomputed| judged base-year fraction of demand met.
@@ -75,6 +78,7 @@ impl Quantity {
         Quantity::BeyondCurveHours,
         Quantity::FlowOverBestEfficiency,
         Quantity::StorageDays,
+        Quantity::RepairShortfallHours,
         Quantity::DeclaredShortfallDifference,
         Quantity::DeclaredDemandMetDifference,
     ];
@@ -97,6 +101,7 @@ impl Quantity {
             Quantity::BeyondCurveHours => "beyond_curve_hours",
             Quantity::FlowOverBestEfficiency => "flow_over_best_efficiency",
             Quantity::StorageDays => "storage_days",
+            Quantity::RepairShortfallHours => "repair_shortfall_hours",
             Quantity::DeclaredShortfallDifference => "declared_shortfall_difference",
             Quantity::DeclaredDemandMetDifference => "declared_demand_met_difference",
         }
@@ -121,6 +126,7 @@ impl Quantity {
             Quantity::DeclaredDemandMetDifference => "percentage points",
             Quantity::MainVelocity => "m/s",
             Quantity::StorageDays => "days",
+            Quantity::RepairShortfallHours => "h",
         }
     }
 
@@ -436,6 +442,32 @@ impl<'a> Facts<'a> {
                 )
             }
             Quantity::FlowOverBestEfficiency => self.flow_over_best_efficiency(),
+            Quantity::RepairShortfallHours => {
+                let r = self.report()?;
+                let worst = r
+                    .repair
+                    .iter()
+                    .max_by(|a, b| {
+                        (a.shortfall_hours, a.unmet_m3)
+                            .partial_cmp(&(b.shortfall_hours, b.unmet_m3))
+                            .unwrap_or(std::cmp::Ordering::Equal)
+                    })
+                    .ok_or("no pump unit is installed to take out of service")?;
+                measured(
+                    worst.shortfall_hours as f64,
+                    format!(
+                        "{} of {} × {} out for {} days from {} {} (the month of the lowest tank level in {}); {} left running",
+                        1,
+                        worst.units_left + 1,
+                        worst.pump,
+                        worst.days,
+                        worst.start_day,
+                        worst.month,
+                        r.horizon_year.year,
+                        worst.units_left
+                    ),
+                )
+            }
             Quantity::StorageDays => {
                 let tank = self
                     .tank_m3

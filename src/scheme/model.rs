@@ -331,6 +331,8 @@ pub struct Targets {
     pub min_demand_met_fraction: Option<f64>,
     pub min_supply_m3_per_person_day: f64,
     pub judged_on: JudgedOn,
+    /// Days one unit is out of service in the repair case (whole days).
+    pub repair_days: f64,
 }
 
 #[derive(Debug, Clone, Serialize)]

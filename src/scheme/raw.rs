@@ -285,6 +285,8 @@ pub struct RawTargets {
     pub min_demand_met_percent: Option<f64>,
     pub min_supply_l_per_person_day: Option<f64>,
     pub judged_on: Option<String>,
+    /// Days one unit of a pump type is out of service for repair in the repair case.
+    pub repair_days: Option<f64>,
 }
 
 #[derive(Debug, Clone, Deserialize)]

@@ -1297,6 +1297,14 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
             "L per person per day",
         ) / 1000.0,
         judged_on,
+        repair_days: c.opt_range(
+            &format!("{f}.repair_days"),
+            g.repair_days,
+            7.0,
+            1.0,
+            60.0,
+            "days one pump unit is out of service for repair in the repair case",
+        ),
     };
 
     // ---- costs

@@ -1929,6 +1929,111 @@ pub struct RunReport {
     pub storage_days_of_average_demand: f64,
     pub target_met_in_horizon_year: bool,
     pub warnings: Vec<String>,
+    /// One repair case per pump type installed (see [`repair_cases`]).
+    pub repair: Vec<RepairCase>,
+}
+
+/// A pump unit out of service for repair: one unit of one pump type is taken out for
+/// `targets.repair_days` in the month whose lowest tank level is the least in the horizon
+/// year's judged weather year, placed where it leaves the most shortfall in that month.
+#[derive(Debug, Clone, Serialize)]
+pub struct RepairCase {
+    pub pump: String,
+    /// Units of that type left running.
+    pub units_left: u32,
+    pub month: &'static str,
+    /// First day of the repair period (1 = the 1st of the month).
+    pub start_day: u32,
+    pub days: u32,
+    /// Shortfall hours and unmet volume inside the repair period.
+    pub shortfall_hours: u32,
+    pub unmet_m3: f64,
+    /// True when the tank and the remaining units carry the period with no shortfall hour.
+    pub carried: bool,
+}
+
+const MONTH_NAMES: [&str; 12] = [
+    "January",
+    "February",
+    "March",
+    "April",
+    "May",
+    "June",
+    "July",
+    "August",
+    "September",
+    "October",
+    "November",
+    "December",
+];
+
+/// The repair case of every pump type installed in `design`, in the horizon year's judged
+/// weather year `weather`.
+///
+/// Method: the month with the least margin is the one whose lowest tank level is the least
+/// in that year; the year is run again with one unit fewer of the pump type throughout, from
+/// its own periodic state, and the shortfall is counted in every window of `repair_days`
+/// starting at a midnight of that month; the worst window is reported. Running the year short
+/// of a unit throughout is conservative: the tank enters the repair period no fuller than it
+/// would with every unit running until then. Common practice (a supply that keeps running
+/// while one pump is repaired, the "N − 1" rule of thumb), no published limit.
+pub fn repair_cases(
+    m: &Model,
+    design: &Design,
+    months: &[Totals; 12],
+    weather: usize,
+) -> Vec<RepairCase> {
+    let s = &m.scheme;
+    let h = s.info.horizon_years;
+    let month = (0..12)
+        .min_by(|a, b| {
+            months[*a]
+                .lowest_level_fraction
+                .total_cmp(&months[*b].lowest_level_fraction)
+                .then(a.cmp(b))
+        })
+        .unwrap_or(0);
+    let days = s.targets.repair_days.round().max(1.0) as usize;
+    let first_day: usize = crate::weather::DAYS_IN_MONTH[..month]
+        .iter()
+        .map(|d| *d as usize)
+        .sum();
+    let month_days = crate::weather::DAYS_IN_MONTH[month] as usize;
+    let mut out = Vec::new();
+    for (i, p) in s.pumps.iter().enumerate() {
+        let n = design.units.get(i).copied().unwrap_or(0);
+        if n == 0 {
+            continue;
+        }
+        let mut d = design.clone();
+        d.units[i] = n - 1;
+        let y = m.run_year(&d, h, weather, true);
+        let Some(hr) = y.hourly.as_ref() else {
+            continue;
+        };
+        let mut best = (0u32, 0.0f64, 0usize);
+        for k in 0..month_days {
+            let start = (first_day + k) * 24;
+            let end = (start + days * 24).min(hr.shortfall_m3.len());
+            let w = &hr.shortfall_m3[start.min(end)..end];
+            let hours = w.iter().filter(|x| **x > 1e-6).count() as u32;
+            let unmet: f64 = w.iter().sum();
+            if (hours, unmet) > (best.0, best.1) {
+                best = (hours, unmet, k);
+            }
+        }
+        out.push(RepairCase {
+            pump: p.name.clone(),
+            units_left: n - 1,
+            month: MONTH_NAMES[month],
+            start_day: best.2 as u32 + 1,
+            days: days as u32,
+            shortfall_hours: best.0,
+            unmet_m3: best.1,
+            carried: best.0 == 0,
+        });
+    }
+    out
 }
 
 /// Which years the horizon table of a report holds.
@@ -1962,6 +2067,11 @@ pub fn run_report_with(m: &Model, design: &Design, years: HorizonYears) -> RunRe
     for y in first.years.iter_mut() {
         y.hourly = None;
     }
+    let repair = last
+        .years
+        .get(last.representative)
+        .map(|y| repair_cases(m, design, &y.months, last.representative))
+        .unwrap_or_default();
     RunReport {
         scheme: s.info.name.clone(),
         design_text: design.describe(s),
@@ -1975,6 +2085,7 @@ pub fn run_report_with(m: &Model, design: &Design, years: HorizonYears) -> RunRe
         first_failing_year,
         storage_days_of_average_demand: storage_days(s, design.tank_m3, &dd),
         warnings: s.warnings.clone(),
+        repair,
     }
 }
 
