@@ -440,3 +440,41 @@ fn check_passes_the_design_size_chose() {
         }
     }
 }
+
+/// No design meets the target: the binding limit is named from evidence (each limit relaxed
+/// on its own), not guessed, and the best design's present worth is still given.
+#[test]
+fn the_binding_limit_is_found_by_relaxing_each_in_turn() {
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("samples/tolomba-market-generator.yaml"),
+    )
+    .unwrap();
+    // a borehole far too weak: 8 m³/h tested against ~515 m³/day of demand
+    let weak = text.replace("tested_yield_m3_per_h: 60", "tested_yield_m3_per_h: 8");
+    // a generator that runs three hours a day
+    let short = text.replace(
+        "      - {start_hour: 5, end_hour: 12}\n      - {start_hour: 13, end_hour: 22}\n",
+        "      - {start_hour: 5, end_hour: 8}\n",
+    );
+    assert_ne!(weak, text);
+    assert_ne!(short, text);
+    for (yaml, want) in [(weak, "source yield"), (short, "drive energy")] {
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("x.yaml");
+        std::fs::write(&p, &yaml).unwrap();
+        let s = load_file(&p).unwrap().scheme;
+        let m = Model::new(&s).unwrap();
+        let plan = size_with_model(&m).unwrap();
+        assert!(plan.chosen.is_none());
+        let u = plan.unreachable.expect("says what limits it");
+        assert!(u.limited_by.starts_with(want), "{want}: {}", u.limited_by);
+        let binding: Vec<&str> = u
+            .relaxations
+            .iter()
+            .filter(|r| r.meets_target)
+            .map(|r| r.limit.as_str())
+            .collect();
+        assert_eq!(binding, vec![want]);
+        assert!(u.present_worth.is_some_and(|v| v > 0.0));
+    }
+}

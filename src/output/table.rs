@@ -350,6 +350,12 @@ pub fn plan_summary(p: &Plan, cur: &str) -> String {
                     u.best_demand_met_fraction * 100.0,
                     u.limited_by
                 ));
+                if let Some(pw) = u.present_worth {
+                    out.push_str(&format!(
+                        "  its life-cycle cost would be {} (NPV) — it does NOT meet the target\n",
+                        money(pw, cur)
+                    ));
+                }
             }
         }
     }

@@ -152,6 +152,109 @@ pub struct Unreachable {
     pub best_demand_met_fraction: f64,
     /// What limits it: source yield, energy, or pump capacity, with the figures behind it.
     pub limited_by: String,
+    /// Each limit relaxed on its own, and whether that alone would meet the target.
+    pub relaxations: Vec<Relaxation>,
+    /// Present worth of the best design found, though it does not meet the target.
+    pub present_worth: Option<f64>,
+}
+
+/// One limit relaxed on its own for the best design found.
+#[derive(Debug, Clone, Serialize)]
+pub struct Relaxation {
+    pub limit: String,
+    /// What was relaxed, in words.
+    pub relaxed: String,
+    pub meets_target: bool,
+    pub judged_shortfall_hours: f64,
+}
+
+/// Whether design `d` meets the target in the horizon year on `m` under scenario `sc`, and its
+/// judged shortfall hours.
+fn horizon_verdict(m: &Model, d: &Design, sc: &Scenario) -> (bool, f64) {
+    let s = &m.scheme;
+    let h = s.info.horizon_years;
+    let years: Vec<YearResult> = (0..m.weather_years_for(d))
+        .map(|w| m.run_year_with(d, h, w, false, sc))
+        .collect();
+    let e = simulate::summarise(s, years);
+    (simulate::meets_target(s, &e), e.judged_shortfall_hours)
+}
+
+/// Relaxes each limit in turn for the best design found (source yield, drive energy, pump
+/// units, tank size) and runs its horizon year again: the limits whose relaxation alone meets
+/// the target are the ones that bind.
+fn relaxations(m: &Model, d: &Design) -> Vec<Relaxation> {
+    let s = &m.scheme;
+    let mut out = Vec::new();
+    let mut push = |limit: &str, relaxed: String, (ok, h): (bool, f64)| {
+        out.push(Relaxation {
+            limit: limit.to_string(),
+            relaxed,
+            meets_target: ok,
+            judged_shortfall_hours: h,
+        })
+    };
+    if !s.boreholes.is_empty() {
+        let sc = Scenario {
+            yield_factor: 100.0,
+            ..Scenario::default()
+        };
+        push(
+            "source yield",
+            "every borehole's safe yield × 100".into(),
+            horizon_verdict(m, d, &sc),
+        );
+    }
+    // drive energy: a three times larger array; generators and mains all day
+    let mut s2 = s.clone();
+    let mut d2 = d.clone();
+    let mut what = Vec::new();
+    if s.uses_solar() && d.array_w > 0.0 {
+        d2.array_w = d.array_w * 3.0;
+        what.push("array × 3");
+    }
+    let all_day = vec![crate::scheme::Window {
+        start_hour: 0,
+        end_hour: 24,
+    }];
+    if let Some(g) = s2.generator.as_mut() {
+        g.run_hours = all_day.clone();
+        what.push("generator all day");
+    }
+    if let Some(g) = s2.grid.as_mut() {
+        g.supply_hours = all_day;
+        what.push("mains all day");
+    }
+    if !what.is_empty()
+        && let Ok(m2) = Model::new(&s2)
+    {
+        let v = horizon_verdict(&m2, &d2, &Scenario::default());
+        m.count_runs_of(&m2);
+        push("drive energy", what.join(", "), v);
+    }
+    let mut d3 = d.clone();
+    for u in &mut d3.units {
+        if *u > 0 {
+            *u *= 2;
+        }
+    }
+    if d3.units != d.units {
+        push(
+            "pump units",
+            "twice the units of each pump type installed".into(),
+            horizon_verdict(m, &d3, &Scenario::default()),
+        );
+    }
+    let d4 = Design {
+        tank_m3: d.tank_m3 * 4.0,
+        ..d.clone()
+    };
+    push(
+        "tank size",
+        "a tank four times larger".into(),
+        horizon_verdict(m, &d4, &Scenario::default()),
+    );
+    out
 }
 
 /// Solar schemes: the tank the mean days alone would call for, for comparison.
@@ -1308,11 +1411,59 @@ fn diagnose(m: &Model, d: &Design, r: &RunReport, which: &str) -> Unreachable {
             y.annual.pumped_m3, demand
         )
     };
+    // the evidence: relax each limit on its own and see which would meet the target
+    let relax = relaxations(m, d);
+    let binding: Vec<&Relaxation> = relax.iter().filter(|x| x.meets_target).collect();
+    let limited_by = if !short_pumps.is_empty() && short_pumps.len() == installed.len() {
+        limited_by
+    } else if binding.is_empty() {
+        format!(
+            "{limited_by}. No single limit relaxed on its own meets the target ({}): several bind together",
+            relax
+                .iter()
+                .map(|x| format!("{}: {:.0} h", x.relaxed, x.judged_shortfall_hours))
+                .collect::<Vec<_>>()
+                .join("; ")
+        )
+    } else {
+        format!(
+            "{} (relaxed on its own, {} meets the target{}); the pumps ran {:.0} hours and lifted {:.0} m³ against a demand of {:.0} m³",
+            binding
+                .iter()
+                .map(|x| x.limit.as_str())
+                .collect::<Vec<_>>()
+                .join(" or "),
+            binding
+                .iter()
+                .map(|x| x.relaxed.as_str())
+                .collect::<Vec<_>>()
+                .join(" or "),
+            {
+                let not: Vec<&str> = relax
+                    .iter()
+                    .filter(|x| !x.meets_target)
+                    .map(|x| x.limit.as_str())
+                    .collect();
+                if not.is_empty() {
+                    String::new()
+                } else {
+                    format!("; relaxing {} alone does not", not.join(", "))
+                }
+            },
+            y.annual.pump_run_hours,
+            y.annual.pumped_m3,
+            demand
+        )
+    };
+    let median_w = median_weather(&r.horizon_year);
+    let cost = cost_of(m, d, &Scenario::default(), median_w, 1.0);
     Unreachable {
         best_design: d.describe(s),
         best_shortfall_hours: r.horizon_year.judged_shortfall_hours,
         best_demand_met_fraction: r.horizon_year.judged_demand_met_fraction,
         limited_by,
+        relaxations: relax,
+        present_worth: (cost.npv > 0.0).then_some(cost.npv),
     }
 }
 

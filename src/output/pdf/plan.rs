@@ -569,10 +569,20 @@ fn page_one(inp: &PlanInputs, b: &mut Vec<Block>) {
                     .map_or("–".into(), |v| format!("{v:.2} {cur}/m³")),
             ));
         }
-        None => {
-            kf.push(("Life-cycle cost".into(), "not computed".into()));
-            kf.push(("Cost per m³".into(), "not computed".into()));
-        }
+        None => match p.unreachable.as_ref().and_then(|u| u.present_worth) {
+            Some(pw) => {
+                kf.push((
+                    "Life-cycle cost of the best design found (does NOT meet the target)".into(),
+                    format!("{} {cur}", grouped(pw)),
+                ));
+            }
+            None => {
+                kf.push((
+                    "Life-cycle cost".into(),
+                    "not computed: no design was costed".into(),
+                ));
+            }
+        },
     }
     b.push(Block::KeyFigures(kf));
 
