@@ -70,3 +70,34 @@ fn a_tank_of_litres_is_refused() {
     assert_eq!(code, Some(2), "{err}");
     assert!(err.contains("tank.capacity_m3"), "{err}");
 }
+
+#[test]
+fn a_flow_that_would_race_through_the_main_warns() {
+    // 250 m³/h in a 125 mm main is 5.7 m/s (Q / (π d² / 4), analytic): a warning with the
+    // field, not a refusal.
+    let text = sample("tolomba-market-generator.yaml");
+    let bad = text.replace(
+        "{flow_m3_per_h: 25, head_m: 44, power_w: 5900}",
+        "{flow_m3_per_h: 250, head_m: 0, power_w: 5900}",
+    );
+    assert_ne!(bad, text);
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("fast.yaml");
+    std::fs::write(&p, &bad).unwrap();
+    let out = Command::cargo_bin("tapplan")
+        .unwrap()
+        .arg("check")
+        .arg(&p)
+        .output()
+        .unwrap();
+    let all = format!(
+        "{}{}",
+        String::from_utf8_lossy(&out.stdout),
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(
+        all.contains("pumps[0].curve") && all.contains("5.7 m/s"),
+        "{all}"
+    );
+    assert!(all.contains("3.6 m³/h"), "{all}");
+}

@@ -1551,6 +1551,31 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
         None => Declared::default(),
     };
 
+    // a curve's flows in L/s typed as m³/h would be 3.6 times too small; in m³/h typed where
+    // L/s was meant, 3.6 times too large: a velocity in the main above 5 m/s (common practice:
+    // mains are laid for 0.5–2.5 m/s) points at the latter
+    if let Some(main) = &rising_main {
+        let area = std::f64::consts::PI * main.internal_diameter_m * main.internal_diameter_m / 4.0;
+        for (i, p) in pumps.iter().enumerate() {
+            if let PumpKind::Curve { points, .. } = &p.kind {
+                let q = points
+                    .iter()
+                    .map(|x| x.flow_m3_per_s)
+                    .fold(0.0f64, f64::max);
+                let v = if area > 0.0 { q / area } else { 0.0 };
+                if v > 5.0 {
+                    ck.warn(
+                        &format!("pumps[{i}].curve"),
+                        format!(
+                            "the curve's largest flow, {:.1} m³/h, would run at {v:.1} m/s in the {:.0} mm rising main (mains are laid for 0.5–2.5 m/s); check that flow_m3_per_h is in m³/h (1 L/s is 3.6 m³/h) and the main's internal_diameter_mm",
+                            q * 3600.0,
+                            main.internal_diameter_m * 1000.0
+                        ),
+                    );
+                }
+            }
+        }
+    }
     if !ck.problems.is_empty() {
         return Err(ck.problems);
     }
