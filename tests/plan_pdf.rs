@@ -179,53 +179,44 @@ fn full_check(name: &str, reader: &dyn PdfReader) -> (tempfile::TempDir, PathBuf
     (dir, pdf)
 }
 
-#[test]
-fn kessa_plan_reads_back_matches_size_and_verifies() {
-    let (_dir, pdf) = full_check("kessa-ridge-solar.yaml", &RustReader);
-    assert_pages_render_inside(&pdf, SIDE_MARGIN_PT, FOOT_MARGIN_PT);
+/// Two tests per sample: read back with the pure-Rust readers (and every page rendered inside
+/// the margins), and with poppler (ignored unless asked for; `.ci/run` asks).
+macro_rules! sample_tests {
+    ($rust:ident, $poppler:ident, $file:literal) => {
+        #[test]
+        fn $rust() {
+            let (_dir, pdf) = full_check($file, &RustReader);
+            assert_pages_render_inside(&pdf, SIDE_MARGIN_PT, FOOT_MARGIN_PT);
+        }
+
+        #[test]
+        #[ignore = "needs poppler-utils; .ci/run runs it with --ignored"]
+        fn $poppler() {
+            full_check($file, &Poppler);
+        }
+    };
 }
 
-#[test]
-#[ignore = "needs poppler-utils; .ci/run runs it with --ignored"]
-fn kessa_plan_reads_back_with_poppler() {
-    full_check("kessa-ridge-solar.yaml", &Poppler);
-}
-
-#[test]
-fn sabuya_plan_reads_back_matches_size_and_verifies() {
-    let (_dir, pdf) = full_check("sabuya-handpumps.yaml", &RustReader);
-    assert_pages_render_inside(&pdf, SIDE_MARGIN_PT, FOOT_MARGIN_PT);
-}
-
-#[test]
-#[ignore = "needs poppler-utils; .ci/run runs it with --ignored"]
-fn sabuya_plan_reads_back_with_poppler() {
-    full_check("sabuya-handpumps.yaml", &Poppler);
-}
-
-#[test]
-fn tolomba_plan_reads_back_matches_size_and_verifies() {
-    let (_dir, pdf) = full_check("tolomba-market-generator.yaml", &RustReader);
-    assert_pages_render_inside(&pdf, SIDE_MARGIN_PT, FOOT_MARGIN_PT);
-}
-
-#[test]
-#[ignore = "needs poppler-utils; .ci/run runs it with --ignored"]
-fn tolomba_plan_reads_back_with_poppler() {
-    full_check("tolomba-market-generator.yaml", &Poppler);
-}
-
-#[test]
-fn wendi_plan_reads_back_matches_size_and_verifies() {
-    let (_dir, pdf) = full_check("wendi-hamlet-ram.yaml", &RustReader);
-    assert_pages_render_inside(&pdf, SIDE_MARGIN_PT, FOOT_MARGIN_PT);
-}
-
-#[test]
-#[ignore = "needs poppler-utils; .ci/run runs it with --ignored"]
-fn wendi_plan_reads_back_with_poppler() {
-    full_check("wendi-hamlet-ram.yaml", &Poppler);
-}
+sample_tests!(
+    kessa_plan_reads_back_matches_size_and_verifies,
+    kessa_plan_reads_back_with_poppler,
+    "kessa-ridge-solar.yaml"
+);
+sample_tests!(
+    sabuya_plan_reads_back_matches_size_and_verifies,
+    sabuya_plan_reads_back_with_poppler,
+    "sabuya-handpumps.yaml"
+);
+sample_tests!(
+    tolomba_plan_reads_back_matches_size_and_verifies,
+    tolomba_plan_reads_back_with_poppler,
+    "tolomba-market-generator.yaml"
+);
+sample_tests!(
+    wendi_plan_reads_back_matches_size_and_verifies,
+    wendi_plan_reads_back_with_poppler,
+    "wendi-hamlet-ram.yaml"
+);
 
 #[test]
 fn every_sample_is_covered() {

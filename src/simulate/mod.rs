@@ -1952,21 +1952,6 @@ pub struct RepairCase {
     pub carried: bool,
 }
 
-const MONTH_NAMES: [&str; 12] = [
-    "January",
-    "February",
-    "March",
-    "April",
-    "May",
-    "June",
-    "July",
-    "August",
-    "September",
-    "October",
-    "November",
-    "December",
-];
-
 /// The repair case of every pump type installed in `design`, in the horizon year's judged
 /// weather year `weather`.
 ///
@@ -2025,7 +2010,7 @@ pub fn repair_cases(
         out.push(RepairCase {
             pump: p.name.clone(),
             units_left: n - 1,
-            month: MONTH_NAMES[month],
+            month: crate::weather::MONTH_NAMES[month],
             start_day: best.2 as u32 + 1,
             days: days as u32,
             shortfall_hours: best.0,
