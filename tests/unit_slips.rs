@@ -47,7 +47,7 @@ fn per_capita_demand_in_cubic_metres_is_refused() {
 
 #[test]
 fn pump_power_in_kilowatts_is_refused() {
-    // 2.6 W input against ~1.2 kW of hydraulic power at 3 m³/h and 141 m (ρgQH, common
+    // 3.3 W input against ~1.2 kW of hydraulic power at 3 m³/h and 141 m (ρgQH, common
     // practice): an efficiency far above 100 %.
     let text = sample("kessa-ridge-solar.yaml");
     let bad = text.replace(
