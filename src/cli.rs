@@ -133,6 +133,9 @@ pub struct SizeArgs {
     /// Write the whole plan as JSON to this file (`-` for standard output)
     #[arg(long, value_name = "FILE")]
     pub json: Option<PathBuf>,
+    /// District rules file: the search obeys its storage-days rule and the verdict uses it
+    #[arg(long, value_name = "DISTRICT.yaml")]
+    pub rules: Option<PathBuf>,
 }
 
 /// Options that replace parts of the file's design.

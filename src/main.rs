@@ -175,6 +175,10 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
     use tapplan::output::table;
     let loaded = tryo!(load(&a.file));
     let s = &loaded.scheme;
+    let rules = match rule_set(&a.rules) {
+        Ok(r) => r,
+        Err(o) => return Ok(o),
+    };
     let m = tryo!(model(&loaded));
     let n_designs = match tapplan::sizing::estimate_search(&m) {
         Ok(est) => {
@@ -200,7 +204,7 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
             s.info.name,
             m.weather_years()
         ));
-        match tapplan::sizing::size_with_model(&m) {
+        match tapplan::sizing::size_with_rules(&m, &rules) {
             Ok(mut p) => {
                 // tools reading the JSON get the horizon table of every year
                 if a.json.is_some() {

@@ -478,3 +478,43 @@ fn the_binding_limit_is_found_by_relaxing_each_in_turn() {
         assert!(u.present_worth.is_some_and(|v| v > 0.0));
     }
 }
+
+/// A district rules file changes the storage floor, and `size --rules` obeys it: the district
+/// example asks for a full day of storage, so Wendi's tank holds at least a day of its horizon
+/// year's average demand (the rule's own measure).
+#[test]
+fn size_obeys_the_district_storage_rule() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let out = Command::new(env!("CARGO_BIN_EXE_tapplan"))
+        .args(["size", "samples/wendi-hamlet-ram.yaml", "--json", "-"])
+        .args(["--rules", "samples/rules/district-example.yaml"])
+        .current_dir(root)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let j: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let tank = j["chosen"]["design"]["tank_m3"].as_f64().unwrap();
+    let s = load_file(&root.join("samples/wendi-hamlet-ram.yaml"))
+        .unwrap()
+        .scheme;
+    let rules = RuleSet::load(&root.join("samples/rules/district-example.yaml")).unwrap();
+    let (days, floor) = tapplan::sizing::storage_floor_m3(&s, &rules).unwrap();
+    assert_eq!(days, 1.0);
+    assert!(
+        tank >= floor - 1e-9,
+        "{tank} m³ below the district's floor {floor} m³"
+    );
+    let verdict = &j["verdict"];
+    assert!(
+        !verdict["warning_rules"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|v| v == "storage-days"),
+        "{verdict}"
+    );
+}
