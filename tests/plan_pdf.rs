@@ -180,6 +180,11 @@ fn sabuya_plan_reads_back_matches_size_and_verifies() {
 }
 
 #[test]
+fn tarumo_plan_reads_back_matches_size_and_verifies() {
+    full_check("tarumo-hamlet-oscillating.yaml");
+}
+
+#[test]
 fn tolomba_plan_reads_back_matches_size_and_verifies() {
     full_check("tolomba-market-generator.yaml");
 }
@@ -202,6 +207,7 @@ fn every_sample_is_covered() {
         [
             "kessa-ridge-solar.yaml",
             "sabuya-handpumps.yaml",
+            "tarumo-hamlet-oscillating.yaml",
             "tolomba-market-generator.yaml",
             "wendi-hamlet-ram.yaml"
         ],

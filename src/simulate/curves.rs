@@ -56,6 +56,7 @@ impl Model {
         samples: usize,
     ) -> Option<PumpSystemCurves> {
         let t = self.tables.get(i)?.as_ref()?;
+        let curve = t.curve()?;
         if units == 0 {
             return None;
         }
@@ -63,22 +64,21 @@ impl Model {
         let b = &self.scheme.boreholes[p.source_index];
         let n = units as f64;
         let samples = samples.max(2);
-        let q_lo = t.curve.flow_min_m3_per_s() * n;
-        let q_hi = t.curve.flow_max_m3_per_s() * n;
+        let q_lo = curve.flow_min_m3_per_s() * n;
+        let q_hi = curve.flow_max_m3_per_s() * n;
         let qs: Vec<f64> = (0..samples)
             .map(|k| q_lo + (q_hi - q_lo) * k as f64 / (samples - 1) as f64)
             .collect();
         let pump_curve = qs
             .iter()
-            .filter_map(|q| t.curve.head_parallel(*q, units, 1.0).map(|h| (*q, h)))
+            .filter_map(|q| curve.head_parallel(*q, units, 1.0).map(|h| (*q, h)))
             .collect();
-        let measured = t
-            .curve
+        let measured = curve
             .points()
             .map(|c| (c.flow_m3_per_s * n, c.head_m))
             .collect();
         let op = |s_past: f64| -> Option<pumps::OperatingPoint> {
-            pumps::operating_point(&t.curve, 1.0, units, |q| t.system.head_m(q, s_past)).ok()
+            pumps::operating_point(curve, 1.0, units, |q| t.system.head_m(q, s_past)).ok()
         };
         let level_at = |s_past: f64| -> Option<f64> {
             op(s_past)

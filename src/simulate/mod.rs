@@ -378,6 +378,24 @@ impl Model {
                         *start_power_w,
                     ));
                 }
+                PumpKind::Displacement { .. } => {
+                    let unit = p
+                        .kind
+                        .displacement_table()
+                        .expect("displacement pump")
+                        .map_err(|e| Error::Input(format!("pumps[{i}].displacement_table: {e}")))?;
+                    let b = &s.boreholes[p.source_index];
+                    let a0 = kernels[p.source_index].as_ref().map_or(0.0, |k| k.k[0]);
+                    let system = SystemCurve::new(&s, b, a0);
+                    let max_offset = b.intake_depth_m - b.submergence_margin_m - b.static_depth_m;
+                    table = Some(PumpTables::build_displacement(
+                        unit,
+                        system,
+                        max_offset,
+                        p.max_units,
+                        p.drive == DriveKind::Solar,
+                    ));
+                }
                 PumpKind::Ram {
                     drive_flow_m3_per_s,
                     efficiency,
@@ -1327,7 +1345,7 @@ impl<'a> State<'a> {
                         }
                         pt.flow_m3_per_s = q_cap;
                     } else {
-                        let pw = t.curve.power_at_clamped(q_cap / n as f64).value * n as f64;
+                        let pw = t.fixed_power_for_flow(n, q_cap, &pt);
                         pt.power_w = pw;
                         pt.flow_m3_per_s = q_cap;
                     }

@@ -810,6 +810,13 @@ fn source_section(inp: &PlanInputs, b: &mut Vec<Block>) {
                 p.max_units.to_string(),
                 match &p.kind {
                     PumpKind::Curve { points, .. } => format!("curve, {} points", points.len()),
+                    PumpKind::Displacement {
+                        rows, fixed_speed, ..
+                    } => format!(
+                        "displacement table, {} heads{}",
+                        rows.len(),
+                        if *fixed_speed { ", fixed speed" } else { "" }
+                    ),
                     PumpKind::Hand { .. } => "hand pump".into(),
                     PumpKind::Ram { efficiency, .. } => {
                         format!("ram, efficiency {:.0} %", efficiency * 100.0)
