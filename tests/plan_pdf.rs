@@ -180,6 +180,11 @@ fn sabuya_plan_reads_back_matches_size_and_verifies() {
 }
 
 #[test]
+fn lomari_plan_reads_back_matches_size_and_verifies() {
+    full_check("lomari-helical-rotor.yaml");
+}
+
+#[test]
 fn tarumo_plan_reads_back_matches_size_and_verifies() {
     full_check("tarumo-hamlet-oscillating.yaml");
 }
@@ -206,6 +211,7 @@ fn every_sample_is_covered() {
         names,
         [
             "kessa-ridge-solar.yaml",
+            "lomari-helical-rotor.yaml",
             "sabuya-handpumps.yaml",
             "tarumo-hamlet-oscillating.yaml",
             "tolomba-market-generator.yaml",
