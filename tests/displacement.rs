@@ -154,6 +154,53 @@ fn ideal_displacement_pump_gives_the_analytic_flow_every_hour_of_a_year() {
     }
 }
 
+#[test]
+fn a_fixed_speed_unit_between_two_measured_heads() {
+    // One flow and power per head (a fixed-speed unit on a generator): at the 20 m static
+    // lift, a third of the way from the row at 10 m (8 L/min, 300 W) to the one at 40 m
+    // (6 L/min, 350 W), linear interpolation in head gives 8 − 2/3 L/min = 0.44 m³/h and
+    // 300 + 50/3 W (analytic).
+    let dir = tempfile::tempdir().unwrap();
+    let table = "      rated_power_w: 400\n      stall_head_m: 45\n      heads:\n        - {head_m: 40, flow_l_per_min: 6, power_w: 350}\n        - {head_m: 10, flow_l_per_min: 8, power_w: 300}\n";
+    let drives = "  generator:\n    rated_power_kw: 1\n    run_hours:\n      - {start_hour: 6, end_hour: 18}\n    fuel_l_per_kwh_rated: 0.08\n    fuel_l_per_kwh_output: 0.25\n    fuel_price_per_l: 1";
+    let f = write(
+        dir.path(),
+        "fixed.yaml",
+        &scheme("generator", drives, table, NEGLIGIBLE_MAIN, ""),
+    );
+    let out = tapplan()
+        .arg("run")
+        .arg(&f)
+        .args(["--hourly", "-", "-q"])
+        .output()
+        .unwrap();
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8(out.stdout).unwrap();
+    let mut lines = text.lines().filter(|l| l.contains(','));
+    let header: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let col = |name: &str| header.iter().position(|h| *h == name).unwrap();
+    let (pumped, power) = (col("pumped_m3"), col("pump_power_w"));
+    for (k, l) in lines.enumerate() {
+        let c: Vec<&str> = l.split(',').collect();
+        let (v, w): (f64, f64) = (c[pumped].parse().unwrap(), c[power].parse().unwrap());
+        let on = (6..18).contains(&(k % 24));
+        let (ev, ew) = if on {
+            (0.44, 300.0 + 50.0 / 3.0)
+        } else {
+            (0.0, 0.0)
+        };
+        assert!(
+            (v - ev).abs() < 1e-5 && (w - ew).abs() < 1e-3,
+            "hour {k}: {v} m³ at {w} W"
+        );
+    }
+}
+
 /// Flow (L/min) of one row of a measured table at power `p` (W): the straight line between
 /// the neighbouring measured points (the trapezoid rule's own interpolant), 0 below the start
 /// power, the last point's flow above the last power. Written out here, independent of the

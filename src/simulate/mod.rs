@@ -889,6 +889,12 @@ pub fn operating_rules(s: &Scheme) -> Vec<String> {
     {
         r.push("Generator and grid pumps run at rated speed within their allowed hours; as many units run as the drive's power allows (each drawing its curve power at the operating point); the generator runs only while pumps run, and its fuel follows the linear fuel curve a·P_rated + b·P_out.".to_string());
     }
+    if s.pumps
+        .iter()
+        .any(|p| matches!(p.kind, PumpKind::Displacement { .. }))
+    {
+        r.push("Positive-displacement pumps are read from their measured table, not the affinity laws: flow linear in input power along each measured head and linear in head between heads, never extrapolated (below the lowest head the lowest row is used, above the highest the flow falls to zero at the stall head, both counted as hours outside the table); the operating point is where the table's flow meets the system curve (bisection); units on one drive share its power equally, and on a generator or the mains a unit runs at its rated power (a fixed-speed unit at its row's power); held to the safe yield, a displacement pump runs that share of the hour.".to_string());
+    }
     if s.pumps.iter().any(|p| p.drive == DriveKind::Hand) {
         r.push("Hand pumps serve demand directly at the well during the pumping hours (one person per pump at the stated sustained power); demand outside those hours must come from the tank.".to_string());
     }
