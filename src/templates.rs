@@ -28,6 +28,11 @@ pub const TEMPLATES: &[Template] = &[
         about: "hand pumps, with a solar pump and tank as the option to motorise",
         text: include_str!("../templates/hand.yaml"),
     },
+    Template {
+        name: "oscillating",
+        about: "small hamlet on a low-yield borehole, a surface-driven oscillating-flow pump on PV",
+        text: include_str!("../templates/oscillating.yaml"),
+    },
 ];
 
 /// The template of that name.

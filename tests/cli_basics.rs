@@ -8,7 +8,7 @@ use std::time::Duration;
 use assert_cmd::Command;
 use predicates::prelude::*;
 
-const TEMPLATES: [&str; 4] = ["solar", "generator", "ram", "hand"];
+const TEMPLATES: [&str; 5] = ["solar", "generator", "ram", "hand", "oscillating"];
 /// Subcommands that exist today. The lead adds run, size, plan, verify and rules here as they land.
 const SUBCOMMANDS: [&str; 7] = ["new", "check", "rules", "run", "size", "plan", "verify"];
 
@@ -177,12 +177,14 @@ fn new_with_an_unknown_template_names_the_known_ones() {
         .args(["new", "x.yaml", "--template", "wind"])
         .assert()
         .code(2)
-        .stderr(predicate::str::contains("solar, generator, ram, hand"));
+        .stderr(predicate::str::contains(
+            "solar, generator, ram, hand, oscillating",
+        ));
     assert!(!dir.path().join("x.yaml").exists());
 }
 
 #[test]
-fn new_list_shows_the_four_templates() {
+fn new_list_shows_every_template() {
     let out = tapplan().args(["new", "--list"]).assert().code(0);
     let stdout = String::from_utf8_lossy(&out.get_output().stdout).into_owned();
     for t in TEMPLATES {

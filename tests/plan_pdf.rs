@@ -217,6 +217,16 @@ sample_tests!(
     wendi_plan_reads_back_with_poppler,
     "wendi-hamlet-ram.yaml"
 );
+sample_tests!(
+    lomari_plan_reads_back_matches_size_and_verifies,
+    lomari_plan_reads_back_with_poppler,
+    "lomari-helical-rotor.yaml"
+);
+sample_tests!(
+    tarumo_plan_reads_back_matches_size_and_verifies,
+    tarumo_plan_reads_back_with_poppler,
+    "tarumo-hamlet-oscillating.yaml"
+);
 
 #[test]
 fn every_sample_is_covered() {
@@ -230,7 +240,9 @@ fn every_sample_is_covered() {
         names,
         [
             "kessa-ridge-solar.yaml",
+            "lomari-helical-rotor.yaml",
             "sabuya-handpumps.yaml",
+            "tarumo-hamlet-oscillating.yaml",
             "tolomba-market-generator.yaml",
             "wendi-hamlet-ram.yaml"
         ],

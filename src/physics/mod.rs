@@ -25,6 +25,7 @@
 //! | hydraulic ram | [`drives`] | D'Aubuisson efficiency q·H/(Q·h); Rankine conversion | lift above supply fall |
 //! | pump curve, affinity laws, parallel/series | [`pumps`] | Fritsch & Carlson (1980) monotone interpolation; affinity laws (Karassik et al., *Pump Handbook*) | inside the tabulated flows; no extrapolation |
 //! | operating point, speed for power | [`pumps`] | bracketed Illinois root finding | always terminates; reports why not |
+//! | positive-displacement pump table | [`displacement`] | the measured table, linear along each axis (no affinity scaling); operating point by bisection | inside the measured heads and powers; outside flagged, never extrapolated |
 //! | population, demand profiles, losses | [`demand`] | geometric/arithmetic growth; IWA water balance (Alegre et al. 2006) | — |
 //! | discounting, present worth, levelised cost | [`money`] | standard compound-interest factors (Newnan, Eschenbach & Lavelle) | end-of-year cash flows |
 //!
@@ -34,6 +35,7 @@
 
 pub mod aquifer;
 pub mod demand;
+pub mod displacement;
 pub mod drives;
 pub mod money;
 pub mod pipes;

@@ -1239,6 +1239,77 @@ impl PowerFlowTable {
     pub fn flow_for_power(&self, power_w: f64) -> f64 {
         self.flow_and_power(power_w).map_or(0.0, |(q, _, _)| q)
     }
+
+    /// A table from operating points solved elsewhere (a positive-displacement pump's
+    /// measured table against the system): total input power (W, strictly rising, ≥ 2
+    /// samples), total flow (m³/s, not falling), head (m), the drive fraction in the speed
+    /// column, and the first sample index from which points lie outside the pump's table.
+    /// Flow is linear in power between samples (the measured table is linear along each axis,
+    /// so samples at its node powers reproduce it); head and speed as [`Self::lookup`].
+    pub fn from_samples(
+        power_w: Vec<f64>,
+        flow: Vec<f64>,
+        head: Vec<f64>,
+        speed: Vec<f64>,
+        beyond_from_index: usize,
+    ) -> Result<PowerFlowTable, PowerTableError> {
+        let samples = power_w.len();
+        if samples < 2 || flow.len() != samples || head.len() != samples || speed.len() != samples {
+            return Err(PowerTableError::InvalidArgument(
+                "give at least 2 samples, one of each column per sample",
+            ));
+        }
+        for j in 1..samples {
+            if power_w[j].is_nan() || power_w[j] <= power_w[j - 1] {
+                return Err(PowerTableError::PowerNotRising { index: j });
+            }
+        }
+        let flow_cubic = (0..samples - 1)
+            .map(|k| {
+                [
+                    power_w[k],
+                    1.0 / (power_w[k + 1] - power_w[k]),
+                    flow[k],
+                    flow[k + 1] - flow[k],
+                    0.0,
+                    0.0,
+                ]
+            })
+            .collect();
+        let buckets = 4 * (samples - 1);
+        let bucket_per_w = buckets as f64 / (power_w[samples - 1] - power_w[0]);
+        let bucket_interval = (0..buckets)
+            .map(|b| {
+                let start = power_w[0] + b as f64 / bucket_per_w;
+                let k = interval_index(samples, start.min(power_w[samples - 1]), |i| power_w[i]);
+                k.min(samples - 2) as u32
+            })
+            .collect();
+        let (head_slope, speed_slope) = if samples >= 3 {
+            (
+                fritsch_carlson_slopes(&power_w, &head),
+                fritsch_carlson_slopes(&power_w, &speed),
+            )
+        } else {
+            let w = power_w[1] - power_w[0];
+            (
+                vec![(head[1] - head[0]) / w; 2],
+                vec![(speed[1] - speed[0]) / w; 2],
+            )
+        };
+        Ok(PowerFlowTable {
+            power_w,
+            flow,
+            flow_cubic,
+            bucket_per_w,
+            bucket_interval,
+            head,
+            head_slope,
+            speed,
+            speed_slope,
+            beyond_from_index,
+        })
+    }
 }
 
 #[cfg(test)]

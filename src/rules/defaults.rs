@@ -24,6 +24,8 @@ pub const BEP_LOW_PERCENT: f64 = 70.0;
 pub const BEP_HIGH_PERCENT: f64 = 120.0;
 /// Storage of at least half a day's demand (common practice).
 pub const STORAGE_MIN_DAYS: f64 = 0.5;
+/// Least share of its rated power a displacement pump should reach in the year, %.
+pub const DISPLACEMENT_RATED_LOW_PERCENT: f64 = 80.0;
 /// Declared shortfall may differ from the recomputed one by max(24 h, 10 %) (our tolerance).
 pub const DECLARED_SHORTFALL_TOLERANCE_H: f64 = 24.0;
 pub const DECLARED_SHORTFALL_TOLERANCE_PERCENT: f64 = 10.0;
@@ -265,6 +267,30 @@ pub fn default_rules() -> Vec<Rule> {
             severity: Warn,
             source: "common practice",
             reference: common("a centrifugal pump is chosen to run at about 70–120 % of its best-efficiency flow, for efficiency and bearing and seal life. The flow is the volume-weighted mean over the base year, brought to the curve's speed by the affinity laws."),
+        },
+        Spec {
+            id: "pump-in-table",
+            description: "Hours a positive-displacement pump runs outside the heads of its measured table",
+            quantity: Q::OutsideTableHours,
+            check: AtMost,
+            limit: Some(0.0),
+            scheme_target: false,
+            relative_percent: None,
+            severity: Warn,
+            source: "common practice",
+            reference: common("a displacement pump is run within the heads its maker's table covers; outside them the simulation does not extrapolate (below the lowest head it uses the lowest row; above the highest it lets the flow fall to zero at the stall head) and its figures for those hours are uncertain."),
+        },
+        Spec {
+            id: "pump-near-rated",
+            description: "Highest input power of a positive-displacement pump in the year against its rated power",
+            quantity: Q::PeakPowerOverRated,
+            check: AtLeast,
+            limit: Some(DISPLACEMENT_RATED_LOW_PERCENT),
+            scheme_target: false,
+            relative_percent: None,
+            severity: Warn,
+            source: "common practice",
+            reference: common("a displacement pump on a solar drive is matched to its array so that it nears its rated input power in strong sun; one that never does is larger than its array can drive. Its flow follows the drive power, so there is no best-efficiency flow to aim at."),
         },
         Spec {
             id: "storage-days",

@@ -50,6 +50,10 @@ pub enum Quantity {
     /// Typical per-unit flow, brought to reference speed by the affinity laws, over the
     /// best-efficiency flow (base year, volume-weighted), fraction.
     FlowOverBestEfficiency,
+    /// Hours a positive-displacement pump runs outside its measured heads (worst year).
+    OutsideTableHours,
+    /// Highest input power of a positive-displacement unit over the base year, % of rated.
+    PeakPowerOverRated,
     /// Usable storage over the horizon year's average daily supplied demand, days.
     StorageDays,
     /// Shortfall hours inside the repair period with one unit of a pump type out of service
@@ -77,6 +81,8 @@ impl Quantity {
         Quantity::MainVelocity,
         Quantity::BeyondCurveHours,
         Quantity::FlowOverBestEfficiency,
+        Quantity::OutsideTableHours,
+        Quantity::PeakPowerOverRated,
         Quantity::StorageDays,
         Quantity::RepairShortfallHours,
         Quantity::DeclaredShortfallDifference,
@@ -100,6 +106,8 @@ impl Quantity {
             Quantity::MainVelocity => "main_velocity",
             Quantity::BeyondCurveHours => "beyond_curve_hours",
             Quantity::FlowOverBestEfficiency => "flow_over_best_efficiency",
+            Quantity::OutsideTableHours => "outside_table_hours",
+            Quantity::PeakPowerOverRated => "peak_power_over_rated",
             Quantity::StorageDays => "storage_days",
             Quantity::RepairShortfallHours => "repair_shortfall_hours",
             Quantity::DeclaredShortfallDifference => "declared_shortfall_difference",
@@ -118,11 +126,13 @@ impl Quantity {
             | Quantity::YieldCappedHours
             | Quantity::DryRunStopHours
             | Quantity::BeyondCurveHours
+            | Quantity::OutsideTableHours
             | Quantity::DeclaredShortfallDifference => "h/year",
             Quantity::DemandMetFirstYear
             | Quantity::DemandMetHorizon
             | Quantity::PumpFlowOverTestedYield
-            | Quantity::FlowOverBestEfficiency => "%",
+            | Quantity::FlowOverBestEfficiency
+            | Quantity::PeakPowerOverRated => "%",
             Quantity::DeclaredDemandMetDifference => "percentage points",
             Quantity::MainVelocity => "m/s",
             Quantity::StorageDays => "days",
@@ -140,9 +150,19 @@ impl Quantity {
             | Quantity::DemandMetHorizon
             | Quantity::PumpFlowOverTestedYield
             | Quantity::FlowOverBestEfficiency
+            | Quantity::PeakPowerOverRated
             | Quantity::DeclaredDemandMetDifference => 1e-2,
             _ => 1.0,
         }
+    }
+
+    /// True for the quantities of positive-displacement pumps only: rules on them are in force
+    /// only for schemes that have such a pump (a scheme without one gets no row for them).
+    pub fn displacement_only(self) -> bool {
+        matches!(
+            self,
+            Quantity::OutsideTableHours | Quantity::PeakPowerOverRated
+        )
     }
 
     /// A limit written in `unit()` converted to the engine unit.
@@ -294,6 +314,28 @@ impl<'a> Facts<'a> {
             .collect())
     }
 
+    /// True when an installed unit is a positive-displacement pump.
+    fn has_displacement_pump(&self) -> bool {
+        let Some(units) = &self.units else {
+            return false;
+        };
+        self.scheme
+            .pumps
+            .iter()
+            .zip(units)
+            .any(|(p, n)| *n > 0 && matches!(p.kind, PumpKind::Displacement { .. }))
+    }
+
+    /// Why a centrifugal-only rule does not apply: the message for a design without an
+    /// installed centrifugal pump.
+    fn no_centrifugal(&self) -> String {
+        if self.has_displacement_pump() {
+            "no centrifugal pump is installed; this rule applies to centrifugal pumps only (a displacement pump is checked by pump-in-table and pump-near-rated)".into()
+        } else {
+            "no motor pump is installed in this design".into()
+        }
+    }
+
     /// True when an installed unit is a motor (curve) pump.
     fn has_motor_pump(&self) -> bool {
         let Some(units) = &self.units else {
@@ -378,9 +420,23 @@ impl<'a> Facts<'a> {
                 };
                 measured(e.judged_demand_met_fraction, ensemble_note(e))
             }
-            Quantity::YieldCappedHours | Quantity::DryRunStopHours | Quantity::BeyondCurveHours => {
-                if !self.has_motor_pump() {
-                    return Err("no motor pump is installed in this design".into());
+            Quantity::YieldCappedHours
+            | Quantity::DryRunStopHours
+            | Quantity::BeyondCurveHours
+            | Quantity::OutsideTableHours => {
+                let applies = match q {
+                    Quantity::BeyondCurveHours => self.has_motor_pump(),
+                    Quantity::OutsideTableHours => self.has_displacement_pump(),
+                    _ => self.has_motor_pump() || self.has_displacement_pump(),
+                };
+                if !applies {
+                    return Err(match q {
+                        Quantity::BeyondCurveHours => self.no_centrifugal(),
+                        Quantity::OutsideTableHours => {
+                            "no positive-displacement pump is installed in this design".into()
+                        }
+                        _ => "no motor pump is installed in this design".into(),
+                    });
                 }
                 let years = self.all_years()?;
                 let pick = |y: &YearResult| match q {
@@ -404,7 +460,7 @@ impl<'a> Facts<'a> {
                 )
             }
             Quantity::IntakeMargin => {
-                if !self.has_motor_pump() {
+                if !self.has_motor_pump() && !self.has_displacement_pump() {
                     return Err("no motor pump is installed in this design".into());
                 }
                 let years = self.all_years()?;
@@ -468,6 +524,7 @@ impl<'a> Facts<'a> {
                     ),
                 )
             }
+            Quantity::PeakPowerOverRated => self.peak_power_over_rated(),
             Quantity::StorageDays => {
                 let tank = self
                     .tank_m3
@@ -554,6 +611,20 @@ impl<'a> Facts<'a> {
                 if p.source_index != bi || *n == 0 {
                     continue;
                 }
+                if let Some(Ok(t)) = p.kind.displacement_table() {
+                    // a displacement pump at its rated power (a fixed-speed unit at its rows')
+                    any = true;
+                    let power = *n as f64 * t.rated_power_w();
+                    if let Ok(op) =
+                        crate::physics::displacement::operating_point(&t, *n, power, |q| {
+                            system.head_m(q, 0.0)
+                        })
+                    {
+                        total += op.flow_m3_per_s;
+                        beyond |= op.outside_table;
+                    }
+                    continue;
+                }
                 let Some(Ok(curve)) = curve_of(&p.kind) else {
                     continue;
                 };
@@ -583,6 +654,70 @@ impl<'a> Facts<'a> {
         measured(ratio, note)
     }
 
+    /// Highest input power of one positive-displacement unit in the base year over its rated
+    /// power, from the hourly record (its speed column holds the drawn share of the rated
+    /// power of the running units). Only when one motor pump type is installed.
+    fn peak_power_over_rated(&self) -> Result<Measured, String> {
+        let s = self.scheme;
+        let units = self
+            .units
+            .as_ref()
+            .ok_or("the file does not give every pump type's `units`")?;
+        let motors: Vec<usize> = s
+            .pumps
+            .iter()
+            .zip(units)
+            .enumerate()
+            .filter(|(_, (p, n))| {
+                **n > 0
+                    && matches!(
+                        p.kind,
+                        PumpKind::Curve { .. } | PumpKind::Displacement { .. }
+                    )
+            })
+            .map(|(i, _)| i)
+            .collect();
+        let i = match motors.as_slice() {
+            [] => return Err("no positive-displacement pump is installed in this design".into()),
+            [i] => *i,
+            _ => {
+                return Err(
+                    "several motor pump types are installed; the hourly record holds one drive share per hour"
+                        .into(),
+                );
+            }
+        };
+        let PumpKind::Displacement { rated_power_w, .. } = s.pumps[i].kind else {
+            return Err("no positive-displacement pump is installed in this design".into());
+        };
+        let r = self.report()?;
+        let h = r
+            .year
+            .hourly
+            .as_ref()
+            .ok_or("the report holds no hourly series of the base year")?;
+        let peak = h
+            .pump_speed_ratio
+            .iter()
+            .zip(&h.pumped_m3)
+            .filter(|(_, v)| **v > 0.0)
+            .map(|(x, _)| *x)
+            .fold(f64::NAN, f64::max);
+        if peak.is_nan() {
+            return Err("the pump never ran in the base year".into());
+        }
+        measured(
+            peak,
+            format!(
+                "{}: highest {:.0} W per unit against {:.0} W rated ({})",
+                s.pumps[i].name,
+                peak * rated_power_w,
+                rated_power_w,
+                r.year.year
+            ),
+        )
+    }
+
     /// Volume-weighted mean of the per-unit flow brought to reference speed, over the
     /// best-efficiency flow, from the base year's hourly head and speed.
     ///
@@ -605,7 +740,7 @@ impl<'a> Facts<'a> {
             .map(|(i, _)| i)
             .collect();
         let i = match installed.as_slice() {
-            [] => return Err("no motor pump is installed in this design".into()),
+            [] => return Err(self.no_centrifugal()),
             [i] => *i,
             _ => {
                 return Err(

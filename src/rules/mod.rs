@@ -234,7 +234,17 @@ pub fn evaluate_unsimulated(
 }
 
 fn evaluate_facts(facts: &measure::Facts<'_>, rules: &RuleSet) -> Vec<RuleOutcome> {
-    rules.enabled().map(|r| evaluate_rule(facts, r)).collect()
+    // rules on displacement pumps are in force only where the scheme has one
+    let has_displacement = facts
+        .scheme
+        .pumps
+        .iter()
+        .any(|p| matches!(p.kind, crate::scheme::PumpKind::Displacement { .. }));
+    rules
+        .enabled()
+        .filter(|r| has_displacement || !r.quantity.displacement_only())
+        .map(|r| evaluate_rule(facts, r))
+        .collect()
 }
 
 /// Compares one measured quantity with one rule's limit.
@@ -413,7 +423,17 @@ mod tests {
             .enabled = false;
         let out = evaluate_unsimulated(&s, None, &rules);
         assert!(out.iter().all(|o| o.id != "walk-to-tap"));
-        assert_eq!(out.len(), RuleSet::defaults().rules.len() - 1);
+        // rules on displacement pumps are not in force for a scheme without one
+        let displacement_only = RuleSet::defaults()
+            .rules
+            .iter()
+            .filter(|r| r.quantity.displacement_only())
+            .count();
+        assert_eq!(displacement_only, 2);
+        assert_eq!(
+            out.len(),
+            RuleSet::defaults().rules.len() - 1 - displacement_only
+        );
     }
 
     #[test]

@@ -233,6 +233,18 @@ pub struct CurvePointSi {
     pub power_w: f64,
 }
 
+/// One measured head of a displacement pump's table, SI units.
+#[derive(Debug, Clone, Serialize)]
+pub struct DisplacementRowSi {
+    pub head_m: f64,
+    /// Input power at which delivery begins at this head (W; 0 for a fixed-speed unit).
+    pub start_power_w: f64,
+    /// (input power W, flow m³/s) of one unit.
+    pub points: Vec<(f64, f64)>,
+    /// Index of the head as given in the file (for messages).
+    pub index: usize,
+}
+
 #[derive(Debug, Clone, Serialize)]
 pub enum PumpKind {
     /// A motor pump with a measured performance curve at rated speed.
@@ -248,6 +260,17 @@ pub enum PumpKind {
         mechanical_efficiency: f64,
         spout_height_m: f64,
     },
+    /// A positive-displacement pump read from its measured table (SI rows as given; the
+    /// simulation builds `physics::displacement::DisplacementTable` from them).
+    Displacement {
+        rows: Vec<DisplacementRowSi>,
+        rated_power_w: f64,
+        stall_head_m: f64,
+        /// One (power, flow) per head: a fixed-speed unit.
+        fixed_speed: bool,
+        /// Setting depth at which the table was measured, m (a note for the report).
+        measured_at_setting_depth_m: Option<f64>,
+    },
     /// A hydraulic ram on a stream fall.
     Ram {
         drive_flow_m3_per_s: f64,
@@ -255,6 +278,51 @@ pub enum PumpKind {
         efficiency: f64,
         elevation_m: f64,
     },
+}
+
+impl PumpKind {
+    /// The checked measured table of a displacement pump (None for other kinds).
+    pub fn displacement_table(
+        &self,
+    ) -> Option<
+        Result<
+            crate::physics::displacement::DisplacementTable,
+            crate::physics::displacement::TableError,
+        >,
+    > {
+        use crate::physics::displacement::{DisplacementTable, TablePoint, TableRow};
+        let PumpKind::Displacement {
+            rows,
+            rated_power_w,
+            stall_head_m,
+            fixed_speed,
+            ..
+        } = self
+        else {
+            return None;
+        };
+        let rows: Vec<TableRow> = rows
+            .iter()
+            .map(|r| TableRow {
+                head_m: r.head_m,
+                start_power_w: r.start_power_w,
+                points: r
+                    .points
+                    .iter()
+                    .map(|(w, q)| TablePoint {
+                        power_w: *w,
+                        flow_m3_per_s: *q,
+                    })
+                    .collect(),
+            })
+            .collect();
+        Some(DisplacementTable::new(
+            &rows,
+            *rated_power_w,
+            *stall_head_m,
+            *fixed_speed,
+        ))
+    }
 }
 
 #[derive(Debug, Clone, Serialize)]
@@ -315,6 +383,8 @@ pub struct Tank {
     pub pump_start_level_fraction: f64,
     pub inlet_elevation_m: f64,
     pub stand_height_m: Option<f64>,
+    /// Gauge pressure at the inlet (a pressurised vessel), Pa; 0 for an open tank.
+    pub delivery_pressure_pa: f64,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]

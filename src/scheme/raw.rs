@@ -199,6 +199,9 @@ pub struct RawPump {
     pub start_power_w: Option<f64>,
     pub min_speed_fraction: Option<f64>,
     pub curve: Option<Vec<RawCurvePoint>>,
+    /// `centrifugal` (the default) or `positive_displacement`.
+    pub pump_type: Option<String>,
+    pub displacement_table: Option<RawDisplacementTable>,
     pub hand_pump: Option<RawHandPump>,
     pub ram: Option<RawRam>,
     pub unit_cost: Option<f64>,
@@ -213,6 +216,38 @@ pub struct RawCurvePoint {
     pub head_m: f64,
     pub power_w: Option<f64>,
     pub efficiency_percent: Option<f64>,
+}
+
+/// A positive-displacement pump's measured table.
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawDisplacementTable {
+    pub rated_power_w: f64,
+    pub stall_head_m: f64,
+    /// One start power for every head (a head's own `start_power_w` overrides it).
+    pub start_power_w: Option<f64>,
+    /// Setting depth at which the table was measured (a note; not used in the simulation).
+    pub measured_at_setting_depth_m: Option<f64>,
+    pub heads: Vec<RawDisplacementHead>,
+}
+
+/// One measured head: flows at several input powers (variable drive), or one flow and power
+/// (a fixed-speed unit).
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawDisplacementHead {
+    pub head_m: f64,
+    pub start_power_w: Option<f64>,
+    pub points: Option<Vec<RawDisplacementPoint>>,
+    pub flow_l_per_min: Option<f64>,
+    pub power_w: Option<f64>,
+}
+
+#[derive(Debug, Clone, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RawDisplacementPoint {
+    pub power_w: f64,
+    pub flow_l_per_min: f64,
 }
 
 #[derive(Debug, Clone, Deserialize)]
@@ -268,6 +303,8 @@ pub struct RawTank {
     pub pump_start_level_fraction: Option<f64>,
     pub inlet_elevation_m: f64,
     pub stand_height_m: Option<f64>,
+    /// Gauge pressure at the inlet when the pumps deliver into a pressurised vessel, bar.
+    pub delivery_pressure_bar: Option<f64>,
 }
 
 #[derive(Debug, Clone, Deserialize)]

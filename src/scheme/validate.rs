@@ -14,6 +14,8 @@ use crate::error::Problem;
 use crate::physics::demand::BuiltinProfile;
 use crate::physics::pipes::Material;
 
+mod displacement;
+
 /// Collects problems and warnings while checking.
 struct Ck<'a> {
     lines: &'a LineMap,
@@ -821,6 +823,7 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
                 format!("{u} units is more than max_units ({max_units})"),
             );
         }
+        displacement::check_kind_keys(c, &f, p, drive);
         let kind = match drive {
             DriveKind::Hand => match &p.hand_pump {
                 Some(h) => PumpKind::Hand {
@@ -894,6 +897,7 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
                     }
                 }
             },
+            _ if displacement::wanted(p) => displacement::check(c, &f, p, drive),
             _ => match &p.curve {
                 Some(pts) => PumpKind::Curve {
                     points: check_curve(c, &f, pts, rho_g),
@@ -960,9 +964,12 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
     }
 
     // ---- rising main
-    let needs_main = pumps
-        .iter()
-        .any(|p| matches!(p.kind, PumpKind::Curve { .. } | PumpKind::Ram { .. }));
+    let needs_main = pumps.iter().any(|p| {
+        matches!(
+            p.kind,
+            PumpKind::Curve { .. } | PumpKind::Displacement { .. } | PumpKind::Ram { .. }
+        )
+    });
     let rising_main = match &raw.rising_main {
         Some(m) => {
             let f = "rising_main";
@@ -1216,6 +1223,15 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
         stand_height_m: t
             .stand_height_m
             .map(|h| c.range(&format!("{f}.stand_height_m"), h, 0.0, 60.0, "m")),
+        delivery_pressure_pa: t.delivery_pressure_bar.map_or(0.0, |p| {
+            crate::physics::water::pa_from_bar(c.range(
+                &format!("{f}.delivery_pressure_bar"),
+                p,
+                0.0,
+                16.0,
+                "bar gauge at the inlet (a pressure vessel; 0 for an open tank)",
+            ))
+        }),
     };
     for (i, b) in boreholes.iter().enumerate() {
         let lift = tank.inlet_elevation_m - b.ground_elevation_m + b.static_depth_m;
@@ -1249,6 +1265,14 @@ pub fn validate(raw: &RawScheme, lines: &LineMap, base_dir: &Path) -> Result<Sch
             }
         }
     }
+
+    displacement::check_lift(
+        c,
+        &pumps,
+        &boreholes,
+        &tank,
+        crate::physics::water::water_density_kg_per_m3(water_temperature_c),
+    );
 
     // ---- targets
     let g = &raw.targets;

@@ -56,6 +56,7 @@ impl Model {
         samples: usize,
     ) -> Option<PumpSystemCurves> {
         let t = self.tables.get(i)?.as_ref()?;
+        let curve = t.curve()?;
         if units == 0 {
             return None;
         }
@@ -63,22 +64,21 @@ impl Model {
         let b = &self.scheme.boreholes[p.source_index];
         let n = units as f64;
         let samples = samples.max(2);
-        let q_lo = t.curve.flow_min_m3_per_s() * n;
-        let q_hi = t.curve.flow_max_m3_per_s() * n;
+        let q_lo = curve.flow_min_m3_per_s() * n;
+        let q_hi = curve.flow_max_m3_per_s() * n;
         let qs: Vec<f64> = (0..samples)
             .map(|k| q_lo + (q_hi - q_lo) * k as f64 / (samples - 1) as f64)
             .collect();
         let pump_curve = qs
             .iter()
-            .filter_map(|q| t.curve.head_parallel(*q, units, 1.0).map(|h| (*q, h)))
+            .filter_map(|q| curve.head_parallel(*q, units, 1.0).map(|h| (*q, h)))
             .collect();
-        let measured = t
-            .curve
+        let measured = curve
             .points()
             .map(|c| (c.flow_m3_per_s * n, c.head_m))
             .collect();
         let op = |s_past: f64| -> Option<pumps::OperatingPoint> {
-            pumps::operating_point(&t.curve, 1.0, units, |q| t.system.head_m(q, s_past)).ok()
+            pumps::operating_point(curve, 1.0, units, |q| t.system.head_m(q, s_past)).ok()
         };
         let level_at = |s_past: f64| -> Option<f64> {
             op(s_past)
@@ -125,6 +125,110 @@ impl Model {
             pumping_level_no_past_m: level_at(0.0),
             pumping_level_with_past_m: level_at(past),
             lowest_allowed_level_m: b.intake_depth_m - b.submergence_margin_m,
+        })
+    }
+}
+
+/// Chart data of a positive-displacement pump: its measured table as flow–power lines, one
+/// per measured head, and the band of the year it worked in. Per unit; flows in m³/s.
+#[derive(Debug, Clone, Serialize)]
+pub struct DisplacementChart {
+    pub pump: String,
+    /// (head m, [(input power W, flow m³/s)]) per measured head by rising head, the start
+    /// point (zero flow) first.
+    pub rows: Vec<(f64, Vec<(f64, f64)>)>,
+    pub rated_power_w: f64,
+    pub stall_head_m: f64,
+    pub measured_at_setting_depth_m: Option<f64>,
+    pub fixed_speed: bool,
+    /// Static lift from the rest water level to the tank inlet (with any vessel pressure), m.
+    pub static_lift_m: f64,
+    /// The year's operating band, when the pump ran.
+    pub band: Option<OperatingBand>,
+}
+
+/// Where a displacement pump worked in a year: the range of head and of per-unit input power
+/// over the hours it pumped, and the band's outline in (power W, flow m³/s) per unit: the
+/// table's flow along the lowest head from the least to the most power, then back along the
+/// highest head.
+#[derive(Debug, Clone, Serialize)]
+pub struct OperatingBand {
+    pub head_range_m: (f64, f64),
+    pub power_range_w: (f64, f64),
+    pub outline: Vec<(f64, f64)>,
+    pub hours: usize,
+}
+
+impl Model {
+    /// The table chart of displacement pump type `i`, with the operating band read from an
+    /// hourly record of a year in which it was the only motor pump type running (None for
+    /// other kinds). The per-unit power of an hour is the drawn share of the rated power of
+    /// the running units (the record's speed column) × the rated power.
+    pub fn displacement_chart(
+        &self,
+        i: usize,
+        hourly: Option<&super::Hourly>,
+    ) -> Option<DisplacementChart> {
+        use crate::physics::displacement::PumpModel;
+        let t = self.tables.get(i)?.as_ref()?;
+        let super::hydraulics::UnitModel::Displacement(table) = &t.unit else {
+            return None;
+        };
+        let p = &self.scheme.pumps[i];
+        let depth = match &p.kind {
+            crate::scheme::PumpKind::Displacement {
+                measured_at_setting_depth_m,
+                ..
+            } => *measured_at_setting_depth_m,
+            _ => None,
+        };
+        let band = hourly.and_then(|h| {
+            let (mut h_lo, mut h_hi) = (f64::INFINITY, f64::NEG_INFINITY);
+            let (mut p_lo, mut p_hi) = (f64::INFINITY, f64::NEG_INFINITY);
+            let mut hours = 0;
+            for k in 0..h.pumped_m3.len() {
+                if h.pumped_m3[k] <= 0.0 || h.pump_head_m[k] <= 0.0 {
+                    continue;
+                }
+                let w = h.pump_speed_ratio[k] * table.rated_power_w();
+                h_lo = h_lo.min(h.pump_head_m[k]);
+                h_hi = h_hi.max(h.pump_head_m[k]);
+                p_lo = p_lo.min(w);
+                p_hi = p_hi.max(w);
+                hours += 1;
+            }
+            if hours == 0 {
+                return None;
+            }
+            const STEPS: usize = 24;
+            let along = |head: f64, rev: bool| -> Vec<(f64, f64)> {
+                (0..=STEPS)
+                    .map(|j| {
+                        let j = if rev { STEPS - j } else { j };
+                        let w = p_lo + (p_hi - p_lo) * j as f64 / STEPS as f64;
+                        (w, table.duty(head, w).flow_m3_per_s)
+                    })
+                    .collect()
+            };
+            let mut outline = along(h_lo, false);
+            outline.extend(along(h_hi, true));
+            outline.push(outline[0]);
+            Some(OperatingBand {
+                head_range_m: (h_lo, h_hi),
+                power_range_w: (p_lo, p_hi),
+                outline,
+                hours,
+            })
+        });
+        Some(DisplacementChart {
+            pump: p.name.clone(),
+            rows: table.rows().collect(),
+            rated_power_w: table.rated_power_w(),
+            stall_head_m: table.stall_head_m(),
+            measured_at_setting_depth_m: depth,
+            fixed_speed: table.fixed_speed(),
+            static_lift_m: t.system.lift0_m,
+            band,
         })
     }
 }

@@ -8,7 +8,17 @@
 //! loss and h_f the rising-main friction (Colebrook–White or Hazen–Williams).
 //! Only s_past changes from hour to hour, so for each number of running units the operating
 //! point is tabulated on a grid of s_past once per scheme; the hourly loop interpolates.
+//!
+//! Every pump model is tabulated into the same tables, so the hourly step makes one call
+//! whatever the pump's kind ([`PumpTables::variable_at`], [`PumpTables::point`]): a
+//! centrifugal curve through the affinity laws ([`pumps::PowerFlowTable::new`]), a
+//! positive-displacement pump through its measured table
+//! ([`crate::physics::displacement`]): at each total power sample, the total flow of n units
+//! sharing that power equally where the table's flow meets the system curve (bisection), the
+//! samples taken at every node power of the table (× n) and evenly between, flow linear
+//! between samples ([`pumps::PowerFlowTable::from_samples`]).
 
+use crate::physics::displacement::{self, DisplacementTable};
 use crate::physics::{aquifer, pipes, pumps, water};
 use crate::scheme::{Borehole, Friction, PumpKind, RisingMain, Scheme};
 
@@ -32,8 +42,16 @@ pub struct SystemCurve {
 
 impl SystemCurve {
     pub fn new(s: &Scheme, b: &Borehole, a0_s_per_m2: f64) -> SystemCurve {
+        let mut lift0_m = s.tank.inlet_elevation_m - b.ground_elevation_m + b.static_depth_m;
+        if s.tank.delivery_pressure_pa > 0.0 {
+            // delivery into a pressurised vessel: its gauge pressure as head, p/(ρg)
+            lift0_m += water::head_m_from_pa(
+                s.tank.delivery_pressure_pa,
+                water::water_density_kg_per_m3(s.info.water_temperature_c),
+            );
+        }
         SystemCurve {
-            lift0_m: s.tank.inlet_elevation_m - b.ground_elevation_m + b.static_depth_m,
+            lift0_m,
             linear_s_per_m2: a0_s_per_m2 + b.well_loss_b_s_per_m2,
             quad_s2_per_m5: b.well_loss_c_s2_per_m5,
             main: s.rising_main.clone(),
@@ -97,10 +115,19 @@ enum UnitsTable {
     Fixed(Vec<Option<Point>>),
 }
 
-/// The tabulated system of one curve pump type on its borehole.
+/// The measured performance a pump type's tables were built from.
+#[derive(Debug, Clone)]
+pub enum UnitModel {
+    /// A centrifugal curve at rated speed (affinity laws for other speeds).
+    Centrifugal(pumps::PumpCurve),
+    /// A positive-displacement pump's measured table.
+    Displacement(DisplacementTable),
+}
+
+/// The tabulated system of one motor pump type on its borehole.
 #[derive(Debug, Clone)]
 pub struct PumpTables {
-    pub curve: pumps::PumpCurve,
+    pub unit: UnitModel,
     pub system: SystemCurve,
     /// s_past grid step, m.
     step_m: f64,
@@ -165,12 +192,97 @@ impl PumpTables {
             by_units.push(t);
         }
         PumpTables {
-            curve,
+            unit: UnitModel::Centrifugal(curve),
             system,
             step_m,
             max_offset_m,
             by_units,
             start_power_w,
+        }
+    }
+
+    /// Builds the tables of a positive-displacement pump for 1..=max_units units: a
+    /// power–flow table per s_past grid point for a variable drive, else the operating point
+    /// at the rated power (a variable table) or at each head's one power (a fixed-speed unit).
+    /// `start_power_w` is the least start power of any head (no unit starts below it).
+    pub fn build_displacement(
+        table: DisplacementTable,
+        system: SystemCurve,
+        max_offset_m: f64,
+        max_units: u32,
+        variable: bool,
+    ) -> PumpTables {
+        let max_offset_m = max_offset_m.max(0.0);
+        let step_m = max_offset_m / (OFFSET_POINTS - 1) as f64;
+        let offsets: Vec<f64> = (0..OFFSET_POINTS).map(|k| k as f64 * step_m).collect();
+        let mut by_units = Vec::new();
+        for n in 1..=max_units.max(1) {
+            let t = if variable {
+                UnitsTable::Variable(
+                    offsets
+                        .iter()
+                        .map(|s| displacement_power_table(&table, n, |q| system.head_m(q, *s)))
+                        .collect(),
+                )
+            } else {
+                let nf = n as f64;
+                UnitsTable::Fixed(
+                    offsets
+                        .iter()
+                        .map(|s| {
+                            displacement::operating_point(
+                                &table,
+                                n,
+                                nf * table.rated_power_w(),
+                                |q| system.head_m(q, *s),
+                            )
+                            .ok()
+                            .filter(|op| op.flow_m3_per_s > 0.0)
+                            .map(|op| Point {
+                                flow_m3_per_s: op.flow_m3_per_s,
+                                power_w: op.power_w,
+                                head_m: op.head_m,
+                                speed_ratio: op.power_w / (nf * table.rated_power_w()),
+                                beyond_table: op.outside_table,
+                            })
+                        })
+                        .collect(),
+                )
+            };
+            by_units.push(t);
+        }
+        let start_power_w = if table.fixed_speed() {
+            0.0
+        } else {
+            table.power_range_w().0
+        };
+        PumpTables {
+            unit: UnitModel::Displacement(table),
+            system,
+            step_m,
+            max_offset_m,
+            by_units,
+            start_power_w,
+        }
+    }
+
+    /// The centrifugal curve these tables were built from (None for other kinds).
+    pub fn curve(&self) -> Option<&pumps::PumpCurve> {
+        match &self.unit {
+            UnitModel::Centrifugal(c) => Some(c),
+            UnitModel::Displacement(_) => None,
+        }
+    }
+
+    /// Total input power (W) of `n` fixed-speed units held to total flow `q_m3_per_s` below
+    /// their operating point `at` (the safe-yield cap): a centrifugal pump is throttled along
+    /// its curve; a displacement pump cannot be throttled, so it runs that share of the hour
+    /// and draws that share of its power.
+    #[inline]
+    pub fn fixed_power_for_flow(&self, n: u32, q_m3_per_s: f64, at: &Point) -> f64 {
+        match &self.unit {
+            UnitModel::Centrifugal(c) => c.power_at_clamped(q_m3_per_s / n as f64).value * n as f64,
+            UnitModel::Displacement(_) => at.power_w * q_m3_per_s / at.flow_m3_per_s,
         }
     }
 
@@ -345,6 +457,68 @@ impl TheisKernel {
         let k_rev = k[1..].iter().rev().copied().collect();
         TheisKernel { k, k_rev, tail }
     }
+}
+
+/// The power–flow table of `n` displacement units sharing their drive's power equally
+/// against one system curve (see the module notes), or None where they never deliver (the
+/// head at zero flow is at or beyond the stall head).
+fn displacement_power_table(
+    t: &DisplacementTable,
+    n: u32,
+    system: impl Fn(f64) -> f64,
+) -> Option<pumps::PowerFlowTable> {
+    let nf = n as f64;
+    let h0 = system(0.0);
+    let start = nf * t.start_power_w(h0);
+    let top = nf * t.power_range_w().1;
+    if !(start.is_finite() && start < top) {
+        return None;
+    }
+    // full drive: every unit offered its highest tabulated power
+    let sat = displacement::operating_point(t, n, top, &system).ok()?;
+    let end = sat.power_w.max(start * (1.0 + 1e-9) + 1e-9);
+    let mut powers: Vec<f64> = t
+        .node_powers_w()
+        .map(|p| nf * p)
+        .filter(|p| *p > start && *p < end)
+        .collect();
+    powers.extend(
+        (0..=POWER_SAMPLES).map(|j| start + (end - start) * j as f64 / POWER_SAMPLES as f64),
+    );
+    powers.sort_by(f64::total_cmp);
+    let mut kept: Vec<f64> = Vec::with_capacity(powers.len());
+    for p in powers {
+        if kept.last().is_none_or(|l| p > l + 1e-9 * end) && p < end {
+            kept.push(p);
+        }
+    }
+    kept.push(end);
+    let (lowest_head, _) = t.head_range_m();
+    let rated = nf * t.rated_power_w();
+    let (mut flow, mut head, mut speed) = (Vec::new(), Vec::new(), Vec::new());
+    let mut beyond = kept.len();
+    for (j, &p) in kept.iter().enumerate() {
+        let op = if j + 1 == kept.len() {
+            Some(sat)
+        } else {
+            displacement::operating_point(t, n, p, &system).ok()
+        };
+        let (q, h, out) = op.map_or((0.0, h0, false), |o| {
+            (o.flow_m3_per_s, o.head_m, o.outside_table)
+        });
+        // flow never falls with power (guards the bisection's last bits)
+        let q = flow.last().map_or(q, |l: &f64| q.max(*l));
+        if out && beyond == kept.len() {
+            beyond = j;
+        }
+        if out && h < lowest_head {
+            beyond = 0;
+        }
+        flow.push(q);
+        head.push(h);
+        speed.push(p / rated);
+    }
+    pumps::PowerFlowTable::from_samples(kept, flow, head, speed, beyond).ok()
 }
 
 /// Curve points of a pump as the physics type.

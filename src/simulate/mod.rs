@@ -433,6 +433,24 @@ impl Model {
                         *start_power_w,
                     ));
                 }
+                PumpKind::Displacement { .. } => {
+                    let unit = p
+                        .kind
+                        .displacement_table()
+                        .expect("displacement pump")
+                        .map_err(|e| Error::Input(format!("pumps[{i}].displacement_table: {e}")))?;
+                    let b = &s.boreholes[p.source_index];
+                    let a0 = kernels[p.source_index].as_ref().map_or(0.0, |k| k.k[0]);
+                    let system = SystemCurve::new(&s, b, a0);
+                    let max_offset = b.intake_depth_m - b.submergence_margin_m - b.static_depth_m;
+                    table = Some(PumpTables::build_displacement(
+                        unit,
+                        system,
+                        max_offset,
+                        p.max_units,
+                        p.drive == DriveKind::Solar,
+                    ));
+                }
                 PumpKind::Ram {
                     drive_flow_m3_per_s,
                     efficiency,
@@ -1036,6 +1054,12 @@ pub fn operating_rules(s: &Scheme) -> Vec<String> {
     {
         r.push("Generator and grid pumps run at rated speed within their allowed hours; as many units run as the drive's power allows (each drawing its curve power at the operating point); the generator runs only while pumps run, and its fuel follows the linear fuel curve a·P_rated + b·P_out.".to_string());
     }
+    if s.pumps
+        .iter()
+        .any(|p| matches!(p.kind, PumpKind::Displacement { .. }))
+    {
+        r.push("Positive-displacement pumps are read from their measured table, not the affinity laws: flow linear in input power along each measured head and linear in head between heads, never extrapolated (below the lowest head the lowest row is used, above the highest the flow falls to zero at the stall head, both counted as hours outside the table); the operating point is where the table's flow meets the system curve (bisection); units on one drive share its power equally, and on a generator or the mains a unit runs at its rated power (a fixed-speed unit at its row's power); held to the safe yield, a displacement pump runs that share of the hour.".to_string());
+    }
     if s.pumps.iter().any(|p| p.drive == DriveKind::Hand) {
         r.push("Hand pumps serve demand directly at the well during the pumping hours (one person per pump at the stated sustained power); demand outside those hours must come from the tank.".to_string());
     }
@@ -1632,7 +1656,7 @@ impl<'a> State<'a> {
                         }
                         pt.flow_m3_per_s = q_cap;
                     } else {
-                        let pw = t.curve.power_at_clamped(q_cap / n as f64).value * n as f64;
+                        let pw = t.fixed_power_for_flow(n, q_cap, &pt);
                         pt.power_w = pw;
                         pt.flow_m3_per_s = q_cap;
                     }

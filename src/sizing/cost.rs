@@ -69,7 +69,10 @@ pub fn capital_items(s: &Scheme, d: &Design) -> Vec<(String, f64, f64)> {
             p.unit_cost * *n as f64,
             p.lifetime_years,
         ));
-        any_main |= matches!(p.kind, PumpKind::Curve { .. } | PumpKind::Ram { .. });
+        any_main |= matches!(
+            p.kind,
+            PumpKind::Curve { .. } | PumpKind::Displacement { .. } | PumpKind::Ram { .. }
+        );
         any_gen |= p.drive == DriveKind::Generator;
         any_solar |= p.drive == DriveKind::Solar;
     }

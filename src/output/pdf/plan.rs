@@ -340,6 +340,87 @@ fn series(name: &str, points: Vec<(f64, f64)>, style: LineStyle, grey: f32, w: f
     }
 }
 
+/// The measured table of a displacement pump as flow–power lines, one per head, with the
+/// year's operating band outlined, and a paragraph that states how the table is read.
+fn displacement_table_chart(
+    b: &mut Vec<Block>,
+    c: &crate::simulate::curves::DisplacementChart,
+    units: u32,
+    year: i32,
+) {
+    let lpm = |q: f64| q * 60_000.0;
+    let count = c.rows.len().max(2) - 1;
+    let mut ser: Vec<Series> = c
+        .rows
+        .iter()
+        .enumerate()
+        .map(|(k, (head, pts))| {
+            let mut line: Vec<(f64, f64)> = pts.iter().map(|(w, q)| (*w, lpm(*q))).collect();
+            if c.fixed_speed {
+                // one point per head: a short mark at that point
+                if let Some(&(w, q)) = line.first() {
+                    line = vec![(w * 0.98, q), (w * 1.02, q)];
+                }
+            }
+            series(
+                &format!("{head:.0} m"),
+                line,
+                LineStyle::Solid,
+                (0.65 * k as f64 / count as f64) as f32,
+                1.2,
+            )
+        })
+        .collect();
+    let mut band_text = String::from("The pump did not run in this year.");
+    if let Some(band) = &c.band {
+        ser.push(series(
+            &format!("operating band {year}"),
+            band.outline.iter().map(|(w, q)| (*w, lpm(*q))).collect(),
+            LineStyle::Dashed,
+            0.0,
+            1.6,
+        ));
+        band_text = format!(
+            "In {year} it pumped in {} hours, at heads from {:.1} to {:.1} m and from {:.0} to {:.0} W per unit (the dashed outline: the table's flow over that range of power at the lowest and the highest head).",
+            band.hours,
+            band.head_range_m.0,
+            band.head_range_m.1,
+            band.power_range_w.0,
+            band.power_range_w.1
+        );
+    }
+    ser.push(series(
+        &format!("rated power {:.0} W", c.rated_power_w),
+        {
+            let top = c
+                .rows
+                .iter()
+                .flat_map(|(_, p)| p.iter().map(|(_, q)| lpm(*q)))
+                .fold(0.0, f64::max);
+            vec![(c.rated_power_w, 0.0), (c.rated_power_w, top * 1.05)]
+        },
+        LineStyle::Dotted,
+        0.4,
+        0.8,
+    ));
+    b.push(Block::Chart(Chart::Line(LineChart {
+        title: format!("Measured table of {} (per unit; {units} installed)", c.pump),
+        x_label: "drive input power per unit (W)".into(),
+        y_label: "flow per unit (L/min)".into(),
+        series: ser,
+        x_range: Some((0.0, c.rated_power_w * 1.1)),
+        y_range: None,
+    })));
+    b.push(para(format!(
+        "{} is a positive-displacement pump read from its measured table{}: one line per measured head, flow against drive input power. Between measured points the flow is taken on the straight line (in power along a head, and in head between heads); nothing is extrapolated. Below a head's start power the pump does not run; below the lowest measured head the lowest line is used and between the highest measured head and the stall head ({:.0} m) the flow falls to zero, both counted as hours outside the table. The static lift is {:.1} m; the operating point of each hour is where the table's flow meets the system curve, with the units sharing the drive's power equally. {band_text}",
+        c.pump,
+        c.measured_at_setting_depth_m
+            .map_or(String::new(), |d| format!(" (measured at a setting depth of {d:.0} m)")),
+        c.stall_head_m,
+        c.static_lift_m,
+    )));
+}
+
 fn months3() -> Vec<String> {
     MONTH_NAMES.iter().map(|m| m[..3].to_string()).collect()
 }
@@ -907,6 +988,13 @@ fn source_section(inp: &PlanInputs, b: &mut Vec<Block>) {
                 p.max_units.to_string(),
                 match &p.kind {
                     PumpKind::Curve { points, .. } => format!("curve, {} points", points.len()),
+                    PumpKind::Displacement {
+                        rows, fixed_speed, ..
+                    } => format!(
+                        "displacement table, {} heads{}",
+                        rows.len(),
+                        if *fixed_speed { ", fixed speed" } else { "" }
+                    ),
                     PumpKind::Hand { .. } => "hand pump".into(),
                     PumpKind::Ram { efficiency, .. } => {
                         format!("ram, efficiency {:.0} %", efficiency * 100.0)
@@ -1071,6 +1159,21 @@ fn source_section(inp: &PlanInputs, b: &mut Vec<Block>) {
     for (pi, p) in s.pumps.iter().enumerate() {
         let n = d.units[pi];
         if n == 0 {
+            continue;
+        }
+        let only_motor = s
+            .pumps
+            .iter()
+            .zip(&d.units)
+            .filter(|(q, u)| {
+                **u > 0 && !matches!(q.kind, PumpKind::Hand { .. } | PumpKind::Ram { .. })
+            })
+            .count()
+            == 1;
+        let hourly = hy.hourly.as_ref().filter(|_| only_motor);
+        if let Some(c) = m.displacement_chart(pi, hourly) {
+            any_curve = true;
+            displacement_table_chart(b, &c, n, hy.year);
             continue;
         }
         let Some(c) = m.pump_system_curves(pi, n, hy.deepest_dynamic_level_m, 41) else {
