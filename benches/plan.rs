@@ -21,6 +21,7 @@ fn plan_largest_sample(c: &mut Criterion) {
                 "tolomba-market-generator.yaml",
                 None,
                 &tapplan::rules::RuleSet::defaults(),
+                None,
             )
             .expect("plans");
             std::hint::black_box(run.pdf.len())

@@ -64,12 +64,12 @@ pub enum Command {
     Run(RunArgs),
     /// Search the least-cost tank, pump count and array that meet the target
     #[command(
-        after_help = help_with_caution!("Example:\n  tapplan size samples/kessa-ridge-solar.yaml\n  tapplan size samples/kessa-ridge-solar.yaml --json plan.json")
+        after_help = help_with_caution!("Exit codes: 0 a design meets the target and fails no rule, 1 none does (the best found is shown with what it misses), 2 bad input.\n\nExample:\n  tapplan size samples/kessa-ridge-solar.yaml\n  tapplan size samples/kessa-ridge-solar.yaml --json plan.json\n  tapplan size samples/wendi-hamlet-ram.yaml --rules samples/rules/district-example.yaml")
     )]
     Size(SizeArgs),
     /// Size the scheme (or evaluate a given design) and write the plan as an A4 PDF
     #[command(
-        after_help = help_with_caution!("Exit codes: 0 the target is met, 1 no design meets it (the PDF is still written and says so), 2 bad input.\n\nExample:\n  tapplan plan samples/kessa-ridge-solar.yaml -o kessa-plan.pdf\n  tapplan plan samples/kessa-ridge-solar.yaml -o fixed.pdf --tank-m3 120 --pumps SolarSub-9=2 --array-kwp 12")
+        after_help = help_with_caution!("Exit codes: 0 the target is met and no rule fails, 1 the design shown misses the target or fails a rule (the PDF is still written and says so), 2 bad input.\n\nExample:\n  tapplan plan samples/kessa-ridge-solar.yaml -o kessa-plan.pdf\n  tapplan plan samples/kessa-ridge-solar.yaml -o fixed.pdf --tank-m3 120 --pumps SolarSub-9=2 --array-kwp 12")
     )]
     Plan(PlanArgs),
     /// Re-run a plan PDF from the scheme file embedded in it and compare figures and bytes
@@ -112,6 +112,10 @@ pub struct PlanArgs {
     pub output: PathBuf,
     #[command(flatten)]
     pub design: DesignArgs,
+    /// District rules file: the search and the plan's verdict follow it, and the PDF carries
+    /// it so `verify` can repeat the plan
+    #[arg(long, value_name = "DISTRICT.yaml")]
+    pub rules: Option<PathBuf>,
 }
 
 #[derive(Debug, Args)]
@@ -133,7 +137,8 @@ pub struct SizeArgs {
     /// Write the whole plan as JSON to this file (`-` for standard output)
     #[arg(long, value_name = "FILE")]
     pub json: Option<PathBuf>,
-    /// District rules file: the search obeys its storage-days rule and the verdict uses it
+    /// District rules file: the search looks only among designs that pass its rules of
+    /// severity fail, honours its storage-days rule as a least tank, and judges by it
     #[arg(long, value_name = "DISTRICT.yaml")]
     pub rules: Option<PathBuf>,
 }
@@ -167,6 +172,9 @@ pub struct RunArgs {
     /// Print only the summary line
     #[arg(long, short)]
     pub quiet: bool,
+    /// District rules file for the verdict on the design (the one `check` gives)
+    #[arg(long, value_name = "DISTRICT.yaml")]
+    pub rules: Option<PathBuf>,
 }
 
 #[derive(Debug, Args)]

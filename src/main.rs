@@ -259,7 +259,8 @@ fn cmd_size(a: cli::SizeArgs) -> anyhow::Result<Outcome> {
         emit(p, text.as_bytes(), &inputs)
             .map_err(|e| anyhow::anyhow!("could not write the JSON: {e}"))?;
     }
-    Ok(if plan.chosen.is_some() {
+    let acceptable = plan.verdict.as_ref().is_none_or(|v| v.acceptable);
+    Ok(if plan.chosen.is_some() && acceptable {
         Outcome::Ok
     } else {
         Outcome::Failed
@@ -340,8 +341,10 @@ fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {
             return Ok(Outcome::BadInput);
         }
     };
+    let rules = tryo!(rule_set(&a.rules));
     let m = tryo!(model(&loaded));
     let r = tapplan::simulate::run_report(&m, &design);
+    let verdict = tapplan::sizing::judge(s, &r, &rules);
     let to_stdout = |p: &Option<std::path::PathBuf>| {
         p.as_ref()
             .is_some_and(|p| tapplan::output::files::is_stdout(p))
@@ -368,6 +371,7 @@ fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {
         for w in &r.warnings {
             outln!("  warning: {w}");
         }
+        outln!("{}", table::verdict_line(&verdict));
     }
     let inputs: [&Path; 1] = [&a.file];
     if let Some(p) = &a.hourly {
@@ -377,7 +381,17 @@ fn cmd_run(a: cli::RunArgs) -> anyhow::Result<Outcome> {
             .map_err(|e| anyhow::anyhow!("could not write the hourly CSV: {e}"))?;
     }
     if let Some(p) = &a.json {
-        let mut text = serde_json::to_string_pretty(&r)?;
+        /// The run's figures with the rules' verdict on its design beside them.
+        #[derive(serde::Serialize)]
+        struct RunJson<'a> {
+            #[serde(flatten)]
+            report: &'a tapplan::simulate::RunReport,
+            verdict: &'a tapplan::sizing::Verdict,
+        }
+        let mut text = serde_json::to_string_pretty(&RunJson {
+            report: &r,
+            verdict: &verdict,
+        })?;
         text.push('\n');
         emit(p, text.as_bytes(), &inputs)
             .map_err(|e| anyhow::anyhow!("could not write the JSON: {e}"))?;
@@ -632,6 +646,28 @@ fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
         return Ok(Outcome::BadInput);
     }
     let loaded = tryo!(load(&a.file));
+    let rules = tryo!(rule_set(&a.rules));
+    let rules_bytes = match &a.rules {
+        Some(p) => {
+            match tapplan::input::read_limited(p, tapplan::scheme::load::MAX_FILE_BYTES as u64) {
+                Ok(b) => Some(b),
+                Err(e) => {
+                    eprintln!("error: cannot read '{}': {e}", shown(p));
+                    return Ok(Outcome::BadInput);
+                }
+            }
+        }
+        None => None,
+    };
+    let rules_name = a.rules.as_ref().map(|p| {
+        p.file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_else(|| "rules.yaml".into())
+    });
+    let rules_file = match (&rules_name, &rules_bytes) {
+        (Some(n), Some(b)) => Some(plan::RulesFile { name: n, bytes: b }),
+        _ => None,
+    };
     let bytes =
         match tapplan::input::read_limited(&a.file, tapplan::scheme::load::MAX_FILE_BYTES as u64) {
             Ok(b) => b,
@@ -650,13 +686,13 @@ fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
         .unwrap_or_else(|| "scheme.yaml".into());
     let run = {
         let _p = Progress::start(format!("planning {}", loaded.scheme.info.name));
-        // The proposal checks are not wired in yet: the plan prints "checks not run".
         match plan::run_plan(
             &loaded,
             &bytes,
             &name,
             given.then_some(&o),
-            &tapplan::rules::RuleSet::defaults(),
+            &rules,
+            rules_file,
         ) {
             Ok(r) => r,
             Err(e) => {
@@ -672,12 +708,17 @@ fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
     }
     let f = &run.figures;
     let line = format!(
-        "{}: {}; shortfall {:.0} h in the first year, {:.0} h in the horizon year; target {}",
+        "{}: {}; shortfall {:.0} h in the first year, {:.0} h in the horizon year; target {}; {}",
         f.scheme,
         f.design,
         f.shortfall_hours_first_year,
         f.shortfall_hours_horizon_year,
-        if run.target_met { "met" } else { "NOT met" }
+        if run.target_met { "met" } else { "NOT met" },
+        if f.failing_rules.is_empty() {
+            "no failing rule".to_string()
+        } else {
+            format!("rules FAIL: {}", f.failing_rules.join(", "))
+        }
     );
     if tapplan::output::files::is_stdout(&a.output) {
         eprintln!("{line}");
@@ -685,7 +726,7 @@ fn cmd_plan(a: cli::PlanArgs) -> anyhow::Result<Outcome> {
         outln!("{line}");
         outln!("wrote '{}' ({} bytes)", a.output.display(), run.pdf.len());
     }
-    Ok(if run.target_met {
+    Ok(if run.target_met && run.acceptable {
         Outcome::Ok
     } else {
         Outcome::Failed
@@ -863,6 +904,33 @@ fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
             return Ok(Outcome::BadInput);
         }
     }
+    // the district rules file the plan followed travels inside it
+    let rules_bytes = match &stored.rules_file {
+        Some(n) => match tryo!(get(plan::RULES_ATTACHMENT)) {
+            Some(b) => Some((n.clone(), b)),
+            None => {
+                eprintln!("error: '{label}' names the rules file '{n}' but does not embed it");
+                return Ok(Outcome::BadInput);
+            }
+        },
+        None => None,
+    };
+    let rules = match &rules_bytes {
+        Some((n, b)) => {
+            let text = String::from_utf8_lossy(b);
+            match tapplan::rules::district::from_str(&text, &format!("{label} (embedded {n})")) {
+                Ok(r) => r,
+                Err(e) => {
+                    eprintln!("{e}");
+                    return Ok(Outcome::BadInput);
+                }
+            }
+        }
+        None => tapplan::rules::RuleSet::defaults(),
+    };
+    let rules_file = rules_bytes
+        .as_ref()
+        .map(|(n, b)| plan::RulesFile { name: n, bytes: b });
     let scheme_label = format!("{label} (embedded {})", stored.scheme_file_name);
     let loaded = match tapplan::scheme::load_bytes(&scheme_bytes, &scheme_label, &dir.0) {
         Ok(l) => l,
@@ -886,7 +954,8 @@ fn cmd_verify(a: cli::VerifyArgs) -> anyhow::Result<Outcome> {
             &scheme_bytes,
             &stored.scheme_file_name,
             o.as_ref(),
-            &tapplan::rules::RuleSet::defaults(),
+            &rules,
+            rules_file,
         ) {
             Ok(r) => r,
             Err(e) => {

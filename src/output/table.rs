@@ -301,7 +301,14 @@ pub fn plan_summary(p: &Plan, cur: &str) -> String {
     let mut out = String::new();
     match &p.chosen {
         Some(c) => {
-            out.push_str(&format!("Chosen design: {}\n", c.design_text));
+            match &p.verdict {
+                Some(v) if !v.acceptable => out.push_str(&format!(
+                    "Chosen design, NOT acceptable as it stands (it fails {}; the notes say why): {}\n",
+                    v.failing_rules.join(", "),
+                    c.design_text
+                )),
+                _ => out.push_str(&format!("Chosen design: {}\n", c.design_text)),
+            }
             out.push_str(&format!(
                 "  horizon-year shortfall {:.0} h/year, {:.1} % of demand met ({}); target: {}\n",
                 c.judged_shortfall_hours,

@@ -165,6 +165,35 @@ impl Quantity {
         )
     }
 
+    /// False for the quantities no design of tank, pumps and array can change (the network's
+    /// people per tap and walk) and for the declared figures, which judge the proposal's own
+    /// design only: the search looks for designs that pass every *other* rule of severity fail.
+    pub fn depends_on_design(self) -> bool {
+        !matches!(
+            self,
+            Quantity::PeoplePerTap
+                | Quantity::WalkToTap
+                | Quantity::DeclaredShortfallDifference
+                | Quantity::DeclaredDemandMetDifference
+        )
+    }
+
+    /// True for the quantities a larger tank improves (with the same pumps and array): a
+    /// design failing only these is tried with larger tanks before its pumps and array are
+    /// given up.
+    pub fn larger_tank_helps(self) -> bool {
+        matches!(
+            self,
+            Quantity::SupplyPerPerson
+                | Quantity::ShortfallHoursFirstYear
+                | Quantity::ShortfallHoursHorizon
+                | Quantity::DemandMetFirstYear
+                | Quantity::DemandMetHorizon
+                | Quantity::StorageDays
+                | Quantity::RepairShortfallHours
+        )
+    }
+
     /// A limit written in `unit()` converted to the engine unit.
     pub fn to_si(self, shown: f64) -> f64 {
         shown * self.factor()

@@ -36,8 +36,8 @@ impl Design {
         resolve_design(s, &DesignOverrides::default())
     }
 
-    /// "60 m³ tank, 1 × SolarSub-9, 6.0 kWp".
-    pub fn describe(&self, s: &Scheme) -> String {
+    /// The pump units alone: "1 × SolarSub-9 + 2 × Hand-A" ("no pumps" when none).
+    pub fn describe_pumps(&self, s: &Scheme) -> String {
         let pumps: Vec<String> = s
             .pumps
             .iter()
@@ -45,14 +45,19 @@ impl Design {
             .filter(|(_, n)| **n > 0)
             .map(|(p, n)| format!("{n} × {}", p.name))
             .collect();
+        if pumps.is_empty() {
+            "no pumps".to_string()
+        } else {
+            pumps.join(" + ")
+        }
+    }
+
+    /// "60 m³ tank, 1 × SolarSub-9, 6.0 kWp".
+    pub fn describe(&self, s: &Scheme) -> String {
         let mut t = format!(
             "{} m³ tank, {}",
             fmt_g(self.tank_m3),
-            if pumps.is_empty() {
-                "no pumps".to_string()
-            } else {
-                pumps.join(" + ")
-            }
+            self.describe_pumps(s)
         );
         let solar_units = s
             .pumps

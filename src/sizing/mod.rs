@@ -305,6 +305,35 @@ impl Verdict {
     }
 }
 
+/// The one judgement of a design: every rule in force on its simulated report (the scheme's
+/// targets are rules of severity fail too), the verdict `check` gives. The declared-figure
+/// rules compare a proposal's declared figures with its own design, so they judge the file's
+/// design only and are left out for any other design.
+pub fn judge(s: &Scheme, report: &RunReport, rules: &RuleSet) -> Verdict {
+    let own = simulate::resolve_design(s, &simulate::DesignOverrides::default()).ok();
+    let is_own = own.as_ref() == Some(&report.design);
+    let outcomes: Vec<crate::rules::RuleOutcome> = crate::rules::evaluate(s, report, rules)
+        .into_iter()
+        .filter(|o| is_own || !rules.get(&o.id).is_some_and(|r| r.quantity.is_declared()))
+        .collect();
+    Verdict::of(&outcomes)
+}
+
+/// The failing rules of a verdict that a design can change (see
+/// [`crate::rules::measure::Quantity::depends_on_design`]): the search looks only among
+/// designs with none.
+fn blocking_rules(v: &Verdict, rules: &RuleSet) -> Vec<String> {
+    v.failing_rules
+        .iter()
+        .filter(|id| rules.get(id).is_none_or(|r| r.quantity.depends_on_design()))
+        .cloned()
+        .collect()
+}
+
+/// Most designs that meet the target but fail a rule the search sets aside before it gives
+/// up and shows the cheapest of them with the rules it fails.
+const MAX_SET_ASIDE: usize = 24;
+
 /// The result of sizing.
 #[derive(Debug, Clone, Serialize)]
 pub struct Plan {
@@ -710,6 +739,37 @@ fn confirm(search: &mut Search, mut d: Design) -> (Option<Design>, Option<f64>, 
     (Some(d), (idx > 0).then(|| tanks[idx - 1]), stepped)
 }
 
+/// The smallest tank larger than `d`'s, among the candidates, with which the design passes
+/// every rule it can change (None when even the largest fails). The rules it is used for
+/// (see [`crate::rules::measure::Quantity::larger_tank_helps`]) improve with the tank, so
+/// the largest is judged first and the rest by bisection.
+fn larger_tank_passing(search: &mut Search, d: &Design, rules: &RuleSet) -> Option<Design> {
+    let s = &search.m.scheme;
+    let tanks = search.tanks.clone();
+    let at = |i: usize| Design {
+        tank_m3: tanks[i],
+        ..d.clone()
+    };
+    let start = tanks.iter().position(|t| *t > d.tank_m3)?;
+    let ok = |search: &mut Search, i: usize| {
+        let r = report_at_ends(search, &at(i));
+        blocking_rules(&judge(s, &r, rules), rules).is_empty()
+    };
+    let (mut lo, mut hi) = (start, tanks.len() - 1);
+    if !ok(search, hi) {
+        return None;
+    }
+    while lo < hi {
+        let mid = lo + (hi - lo) / 2;
+        if ok(search, mid) {
+            hi = mid;
+        } else {
+            lo = mid + 1;
+        }
+    }
+    Some(at(hi))
+}
+
 /// Operation figures of a design in a year, from its judged weather year (or the only one).
 fn operation(m: &Model, d: &Design, year: u32, weather: usize, sc: &Scenario) -> Operation {
     let r = m.run_year_with(d, year, weather, false, sc);
@@ -808,6 +868,9 @@ fn median_weather(e: &Ensemble) -> usize {
 struct Found {
     best: Option<(f64, Design)>,
     per_count: std::collections::BTreeMap<u32, (f64, Design)>,
+    /// Pump sets with an array size (W, as bits) set aside because their design fails a rule:
+    /// the search's designs for them are not offered.
+    excluded: std::collections::HashSet<(Vec<u32>, u64)>,
 }
 
 impl Found {
@@ -823,6 +886,17 @@ impl Found {
     }
 
     fn offer(&mut self, cost: f64, d: &Design) {
+        if self
+            .excluded
+            .contains(&(d.units.clone(), d.array_w.to_bits()))
+        {
+            return;
+        }
+        self.offer_checked(cost, d);
+    }
+
+    /// Offers a design the rules have already passed (a larger tank of a set-aside pump set).
+    fn offer_checked(&mut self, cost: f64, d: &Design) {
         let count: u32 = d.units.iter().sum();
         if self.best.as_ref().is_none_or(|(b, _)| cost < *b) {
             self.best = Some((cost, d.clone()));
@@ -1064,32 +1138,156 @@ pub fn size_with_rules(m: &Model, rules: &RuleSet) -> Result<Plan, Error> {
         })
         .collect();
     order_sets.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
-    let mut found = Found::default();
-    for (_, units) in &order_sets {
-        let arrays: Vec<f64> = if uses_solar(s, units) {
-            arrays_all.clone()
-        } else {
-            vec![0.0]
-        };
-        search_pump_set(&mut search, &mut found, units, &arrays, median_w);
-    }
-    let best = found.best;
-    let per_count = found.per_count;
-
-    // ---- confirm the chosen design
+    // ---- the search, among designs that pass the rules
+    // Pump sets that fail a rule before any simulation (their full-speed flow against the
+    // tested yield) are left out; the rest are searched for the least-cost design that meets
+    // the target, which is then judged on every rule in force ([`judge`]). A design failing a
+    // rule it could change is set aside with its pump set and array, and the search is run
+    // again without it (its verdicts are remembered, so a repeat costs little); where only
+    // rules a larger tank helps fail, the smallest larger tank that passes stays in the race.
     let mut notes = Vec::new();
-    let mut next_smaller = None;
-    let chosen_design = match best {
-        Some((_, d)) => {
-            let (d, smaller, stepped) = confirm(&mut search, d);
-            next_smaller = smaller;
-            if stepped {
-                notes.push("the tank found by bisection did not pass when re-checked (shortfall was not monotone in tank size here); it was stepped up until it did".to_string());
-            }
-            d
+    let mut left_out: Vec<(String, Vec<String>)> = Vec::new();
+    order_sets.retain(|(_, units)| {
+        let d = Design {
+            tank_m3: tanks[0],
+            units: units.clone(),
+            array_w: arrays_all.first().copied().unwrap_or(0.0),
+        };
+        let v = Verdict::of(&crate::rules::evaluate_unsimulated(s, Some(&d), rules));
+        let blocking: Vec<String> = blocking_rules(&v, rules)
+            .into_iter()
+            .filter(|id| {
+                rules
+                    .get(id)
+                    .is_some_and(|r| r.quantity != crate::rules::measure::Quantity::StorageDays)
+            })
+            .collect();
+        if blocking.is_empty() {
+            true
+        } else {
+            left_out.push((d.describe_pumps(s), blocking));
+            false
         }
-        None => None,
+    });
+    let mut excluded = std::collections::HashSet::new();
+    let mut larger_tanks: Vec<Design> = Vec::new();
+    let mut set_aside: Vec<(Design, RunReport, Vec<String>)> = Vec::new();
+    let mut stepped_note = false;
+    let (chosen_design, next_smaller, per_count, judged) = loop {
+        let mut found = Found {
+            excluded: excluded.clone(),
+            ..Found::default()
+        };
+        for d in &larger_tanks {
+            found.offer_checked(search_npv(m, d, median_w), d);
+        }
+        for (_, units) in &order_sets {
+            let arrays: Vec<f64> = if uses_solar(s, units) {
+                arrays_all.clone()
+            } else {
+                vec![0.0]
+            };
+            search_pump_set(&mut search, &mut found, units, &arrays, median_w);
+        }
+        let per_count = found.per_count;
+        let Some((_, best)) = found.best else {
+            break (None, None, per_count, None);
+        };
+        // a larger tank of a set-aside pump set is taken as it is (the smaller ones fail a rule)
+        let (d, smaller) = if larger_tanks.contains(&best) {
+            (Some(best), None)
+        } else {
+            let (d, smaller, stepped) = confirm(&mut search, best);
+            stepped_note |= stepped;
+            (d, smaller)
+        };
+        let Some(d) = d else {
+            break (None, None, per_count, None);
+        };
+        let report = report_at_ends(&mut search, &d);
+        let verdict = judge(s, &report, rules);
+        let blocking = blocking_rules(&verdict, rules);
+        if blocking.is_empty() || set_aside.len() >= MAX_SET_ASIDE {
+            break (Some(d), smaller, per_count, Some((report, verdict)));
+        }
+        excluded.insert((d.units.clone(), d.array_w.to_bits()));
+        let tank_helps = blocking.iter().all(|id| {
+            rules
+                .get(id)
+                .is_some_and(|r| r.quantity.larger_tank_helps())
+        });
+        if tank_helps && let Some(t) = larger_tank_passing(&mut search, &d, rules) {
+            larger_tanks.push(t);
+        }
+        set_aside.push((d, report, blocking));
     };
+    if stepped_note {
+        notes.push("the tank found by bisection did not pass when re-checked (shortfall was not monotone in tank size here); it was stepped up until it did".to_string());
+    }
+    // Nothing passes every rule: show the cheapest design that meets the target, with the
+    // rules it fails (the verdict says it is not acceptable).
+    let (chosen_design, next_smaller, judged) = match (chosen_design, set_aside.first()) {
+        (None, Some((d, report, _))) => {
+            let verdict = judge(s, report, rules);
+            (Some(d.clone()), None, Some((report.clone(), verdict)))
+        }
+        (d, _) => (d, next_smaller, judged),
+    };
+    if !left_out.is_empty() {
+        let list: Vec<String> = left_out
+            .iter()
+            .map(|(p, ids)| format!("{p} (fails {})", ids.join(", ")))
+            .collect();
+        notes.push(format!(
+            "pump sets left out of the search because they fail a rule whatever the tank and array: {}",
+            list.join("; ")
+        ));
+    }
+    if !set_aside.is_empty() {
+        let acceptable = judged.as_ref().is_some_and(|(_, v)| v.acceptable);
+        let list: Vec<String> = set_aside
+            .iter()
+            .take(4)
+            .map(|(d, _, ids)| format!("{} (fails {})", d.describe(s), ids.join(", ")))
+            .collect();
+        let more = set_aside.len().saturating_sub(4);
+        notes.push(format!(
+            "{} design(s) that meet the target but fail a rule were set aside{}: {}{}",
+            set_aside.len(),
+            if acceptable {
+                " for a dearer one that passes"
+            } else if set_aside.len() >= MAX_SET_ASIDE {
+                "; the search stopped there and shows the cheapest of them"
+            } else {
+                "; none in the ranges passes every rule, so the cheapest is shown with the rules it fails"
+            },
+            list.join("; "),
+            if more > 0 {
+                format!("; and {more} more")
+            } else {
+                String::new()
+            }
+        ));
+    }
+    if let Some((_, v)) = &judged {
+        let fixed: Vec<&String> = v
+            .failing_rules
+            .iter()
+            .filter(|id| {
+                rules
+                    .get(id)
+                    .is_some_and(|r| !r.quantity.depends_on_design())
+            })
+            .collect();
+        if !fixed.is_empty() {
+            notes.push(format!(
+                "{} {} whatever the tank, pumps and array: {} on the scheme's network or its declared figures, which the search cannot change; the proposal needs that changed, not a larger design",
+                fixed.iter().map(|s| s.as_str()).collect::<Vec<_>>().join(", "),
+                if fixed.len() == 1 { "fails" } else { "fail" },
+                if fixed.len() == 1 { "it rests" } else { "they rest" },
+            ));
+        }
+    }
     // the alternatives get the same confirmation; the chosen design stands for its own count
     let mut confirmed_alts: Vec<Design> = Vec::new();
     for (_, (_, d)) in per_count.iter() {
@@ -1098,14 +1296,18 @@ pub fn size_with_rules(m: &Model, rules: &RuleSet) -> Result<Plan, Error> {
             .is_some_and(|c| c.units.iter().sum::<u32>() == d.units.iter().sum::<u32>());
         if same_set {
             confirmed_alts.push(chosen_design.clone().expect("chosen"));
+        } else if larger_tanks.contains(d) {
+            confirmed_alts.push(d.clone());
         } else if let (Some(c), _, _) = confirm(&mut search, d.clone()) {
             confirmed_alts.push(c);
         }
     }
 
     // ---- report on the chosen design or the best reachable
-    let shown = chosen_design.clone().unwrap_or_else(|| biggest.clone());
-    let report = report_at_ends(&mut search, &shown);
+    let (report, verdict) = match judged {
+        Some((r, v)) => (r, Some(v)),
+        None => (report_at_ends(&mut search, &biggest), None),
+    };
     let median_w = median_weather(&report.horizon_year);
     let chosen = chosen_design.as_ref().map(|d| {
         let c = cost_of(m, d, &Scenario::default(), median_w, 1.0);
@@ -1201,9 +1403,6 @@ pub fn size_with_rules(m: &Model, rules: &RuleSet) -> Result<Plan, Error> {
             }
         ));
     }
-    let verdict = chosen
-        .as_ref()
-        .map(|_| Verdict::of(&crate::rules::evaluate(s, &report, rules)));
     Ok(Plan {
         scheme: s.info.name.clone(),
         target_text: target_text(s),
@@ -1290,7 +1489,7 @@ pub fn summarise_design(m: &Model, d: &Design, rules: &RuleSet) -> DesignSummary
         capital: ev.cost.capital,
         present_worth: ev.cost.npv,
         cost_per_m3: ev.cost.levelised_per_m3,
-        verdict: Verdict::of(&crate::rules::evaluate(s, &report, rules)),
+        verdict: judge(s, &report, rules),
     }
 }
 
@@ -1308,11 +1507,7 @@ pub fn evaluate_fixed(m: &Model, d: &Design) -> Result<Plan, Error> {
     let chosen = ev.meets_target.then(|| ev.clone());
     let unreachable = (!ev.meets_target).then(|| diagnose(m, d, &report, "with the given design"));
     let sensitivity = sensitivity(m, d, median_w)?;
-    let verdict = Some(Verdict::of(&crate::rules::evaluate(
-        s,
-        &report,
-        &RuleSet::defaults(),
-    )));
+    let verdict = Some(judge(s, &report, &RuleSet::defaults()));
     Ok(Plan {
         scheme: s.info.name.clone(),
         target_text: target_text(s),

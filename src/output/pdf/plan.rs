@@ -83,6 +83,24 @@ pub struct Figures {
     pub overrides: Option<OverridesRecord>,
     /// Weather file as the scheme names it (relative to the scheme file), when embedded.
     pub weather_file: Option<String>,
+    /// The rules' verdict on the design shown: the ids of the rules of severity fail it fails
+    /// (empty: acceptable).
+    #[serde(default)]
+    pub failing_rules: Vec<String>,
+    /// File name of the district rules file the plan followed, when one was given (embedded
+    /// as [`RULES_ATTACHMENT`]).
+    #[serde(default)]
+    pub rules_file: Option<String>,
+}
+
+/// Attachment name of the district rules file a plan followed.
+pub const RULES_ATTACHMENT: &str = "rules.yaml";
+
+/// A district rules file a plan followed: its file name and exact bytes.
+#[derive(Debug, Clone, Copy)]
+pub struct RulesFile<'a> {
+    pub name: &'a str,
+    pub bytes: &'a [u8],
 }
 
 impl Figures {
@@ -149,6 +167,20 @@ impl Figures {
                 f(&other.units)
             ));
         }
+        if self.failing_rules != other.failing_rules {
+            let f = |v: &[String]| {
+                if v.is_empty() {
+                    "none".to_string()
+                } else {
+                    v.join(", ")
+                }
+            };
+            d.push(format!(
+                "failing_rules: {} in the PDF, {} now",
+                f(&self.failing_rules),
+                f(&other.failing_rules)
+            ));
+        }
         if self.target_met != other.target_met {
             d.push(format!(
                 "target_met: {} in the PDF, {} now",
@@ -194,6 +226,8 @@ pub struct PlanInputs<'a> {
     /// The scheme file's exact bytes.
     pub scheme_bytes: &'a [u8],
     pub weather_file: Option<WeatherFile<'a>>,
+    /// The district rules file the plan followed (None: the default rules).
+    pub rules_file: Option<RulesFile<'a>>,
     /// Command-line design overrides (None: the plan is the result of the search).
     pub overrides: Option<OverridesRecord>,
     pub checks: &'a [CheckRow],
@@ -279,6 +313,12 @@ pub fn figures(inp: &PlanInputs) -> Figures {
         currency: s.info.currency.clone(),
         overrides: inp.overrides.clone(),
         weather_file: inp.weather_file.map(|w| w.name.to_string()),
+        failing_rules: p
+            .verdict
+            .as_ref()
+            .map(|v| v.failing_rules.clone())
+            .unwrap_or_default(),
+        rules_file: inp.rules_file.map(|r| r.name.to_string()),
     }
 }
 
@@ -517,6 +557,14 @@ pub fn plan_document(inp: &PlanInputs) -> Document {
         },
     ];
     attachments.extend(inp.pumping_tests.attachments.iter().cloned());
+    if let Some(r) = inp.rules_file {
+        attachments.push(Attachment {
+            name: RULES_ATTACHMENT.into(),
+            mime: "application/yaml".into(),
+            bytes: r.bytes.to_vec(),
+            description: format!("District rules file {} the plan followed", r.name),
+        });
+    }
     if let Some(w) = inp.weather_file {
         attachments.push(Attachment {
             name: weather_attachment_name(w.name),
@@ -703,6 +751,17 @@ fn page_one(inp: &PlanInputs, b: &mut Vec<Block>) {
         verdict_text.push_str(&format!(
             " The next smaller tank ({} m³) with the same pumps and drive does not meet it.",
             fmt_g(t)
+        ));
+    }
+    if let Some(v) = p.verdict.as_ref().filter(|v| !v.acceptable) {
+        verdict_text.push_str(&format!(
+            " It is NOT ACCEPTABLE as it stands: it fails the rule(s) {} (see Proposal checks){}.",
+            v.failing_rules.join(", "),
+            if inp.overrides.is_none() && p.chosen.is_some() {
+                "; no design the search found passes them, so the cheapest that meets the target is shown"
+            } else {
+                ""
+            }
         ));
     }
     b.push(para(verdict_text));
@@ -1881,6 +1940,8 @@ pub struct PlanRun {
     pub figures: Figures,
     /// True when the design shown meets the target in the horizon year.
     pub target_met: bool,
+    /// True when the design shown fails no rule of severity fail (the verdict of `check`).
+    pub acceptable: bool,
 }
 
 /// The whole `plan` pipeline for a loaded scheme: prepare the model, size the scheme (or
@@ -1894,6 +1955,7 @@ pub fn run_plan(
     scheme_file_name: &str,
     overrides: Option<&crate::simulate::DesignOverrides>,
     rules: &crate::rules::RuleSet,
+    rules_file: Option<RulesFile<'_>>,
 ) -> Result<PlanRun, crate::error::Error> {
     use crate::error::Error;
     let s = &loaded.scheme;
@@ -1905,11 +1967,7 @@ pub fn run_plan(
         }
         None => crate::sizing::size_with_rules(&m, rules)?,
     };
-    plan.verdict = Some(crate::sizing::Verdict::of(&crate::rules::evaluate(
-        s,
-        &plan.report,
-        rules,
-    )));
+    plan.verdict = Some(crate::sizing::judge(s, &plan.report, rules));
     // the plan shows the year-by-year table (a fixed design's report already has it)
     crate::sizing::complete_horizon(&m, &mut plan);
     let detail = m.run_year(
@@ -1968,6 +2026,7 @@ pub fn run_plan(
         weather_file: weather
             .as_ref()
             .map(|(n, b)| WeatherFile { name: n, bytes: b }),
+        rules_file,
         overrides: record,
         checks: &checks,
         pumping_tests: &pumping_tests,
@@ -1978,6 +2037,7 @@ pub fn run_plan(
         pdf,
         figures: figures(&inp),
         target_met: plan.chosen.is_some(),
+        acceptable: plan.verdict.as_ref().is_none_or(|v| v.acceptable),
     })
 }
 
@@ -2037,6 +2097,8 @@ mod tests {
             currency: "USD".into(),
             overrides: None,
             weather_file: None,
+            failing_rules: Vec::new(),
+            rules_file: None,
         };
         assert!(f.differences(&f.clone()).is_empty());
         let mut g = f.clone();
